@@ -338,6 +338,17 @@ class Segment:
 
 
 @dataclass(frozen=True)
+class Quorum:
+    """Whether enough voting members were present to do business."""
+
+    present: int  # voting members present
+    members: int  # voting members on the roster
+    required: int
+    met: bool
+    rule: str  # where ``required`` comes from, in words
+
+
+@dataclass(frozen=True)
 class Minutes:
     """Everything a renderer needs, and nothing it has to compute."""
 
@@ -354,4 +365,5 @@ class Minutes:
     not_discussed: tuple[str, ...] = ()  # agenda items no segment matched
     notes: tuple[str, ...] = ()  # run notes for the reader of the draft (warnings, counts)
     roster: Roster | None = None
+    quorum: Quorum | None = None
     approved_on: dt.date | None = None  # None: this is a DRAFT
