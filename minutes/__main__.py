@@ -1,0 +1,5 @@
+"""``python -m minutes``: the same as the ``minutes`` command."""
+
+from .cli import main
+
+main()
