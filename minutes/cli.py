@@ -121,13 +121,20 @@ def main() -> None:
               help="Speaker profile file or folder (TOML). Default: as the meeting file says.")
 @click.option("--meeting", type=click.Path(path_type=Path),
               help="Meeting file (TOML). Default: NAME.meeting.toml beside the input.")
-@click.option("--date", callback=_date, help="Meeting date, YYYY-MM-DD (overrides the meeting file).")
+@click.option("--date", callback=_date,
+              help="Meeting date, YYYY-MM-DD (overrides the meeting file).")
 @click.option("--title", help="Meeting title (overrides the meeting file).")
 @click.option("--template", type=click.Choice(["general", "board"]),
               help="Layout of the minutes; default: board for boards, councils and committees.")
 @click.option("--encoding", help="Text encoding of the input when it is not UTF-8 or UTF-16.")
 @click.option("--engine", type=click.Choice(["rules", "llm"]), default="rules", show_default=True,
               help="Who reads each segment.")
+@click.option("--model", type=click.Path(dir_okay=False, path_type=Path),
+              help="GGUF model file for --engine llm (a file on this machine; never downloaded).")
+@click.option("--threads", type=click.IntRange(1, 256), default=1, show_default=True,
+              help="CPU threads for the language model.")
+@click.option("--context", "context_tokens", type=click.IntRange(1024, 131_072), default=4096,
+              show_default=True, help="Context size of the language model, in tokens.")
 @click.option("--max-words", type=click.IntRange(200, 50_000), default=None,
               help="Word budget of one segment (what one relay step reads).")
 @click.option("--force", is_flag=True, help="Replace output files that already exist.")
@@ -135,8 +142,8 @@ def main() -> None:
 @_guard
 def draft(input: Path, outputs: tuple[Path, ...], fmt: str | None, profiles: Path | None,
           meeting: Path | None, date: dt.date | None, title: str | None, template: str | None,
-          encoding: str | None, engine: str, max_words: int | None, force: bool,
-          quiet: bool) -> None:
+          encoding: str | None, engine: str, model: Path | None, threads: int,
+          context_tokens: int, max_words: int | None, force: bool, quiet: bool) -> None:
     """Write draft minutes of the meeting in INPUT (captions, transcript or recording)."""
     from dataclasses import replace
 
@@ -156,9 +163,15 @@ def draft(input: Path, outputs: tuple[Path, ...], fmt: str | None, profiles: Pat
         segmentation = replace(segmentation, max_words=max_words)
     options = DraftOptions(profiles=profiles, meeting=meeting, date=date, title=title,
                            template=template, encoding=encoding, engine=engine,
-                           segmentation=segmentation)
+                           segmentation=segmentation, model=model, threads=threads,
+                           context=context_tokens)
     progress = Progress(quiet)
-    minutes = make_draft(input, options, progress)
+
+    def report(line: str) -> None:
+        if not quiet:
+            click.echo(line, err=True)
+
+    minutes = make_draft(input, options, progress, report)
     if not targets:
         sys.stdout.buffer.write(render(minutes, fmt or "md"))
         sys.stdout.flush()
@@ -175,6 +188,9 @@ def draft(input: Path, outputs: tuple[Path, ...], fmt: str | None, profiles: Pat
             "the recording before you share it.",
             err=True,
         )
+        for note in minutes.notes:
+            if note.startswith("language model:"):
+                click.echo(note, err=True)
 
 
 def _format_of(path: Path) -> str:

@@ -35,6 +35,9 @@ class DraftOptions:
     engine: str = "rules"
     segmentation: SegmentOptions = field(default_factory=SegmentOptions)
     asr: object | None = None  # minutes.asr.AsrOptions for recordings
+    model: Path | None = None  # GGUF file for the llm engine
+    threads: int = 1  # llama.cpp threads; 1 degrades gracefully on a busy 2-core machine
+    context: int = 4096  # llama.cpp context size in tokens
 
 
 def _quiet(stage: str, done: int, total: int) -> None:
@@ -70,8 +73,12 @@ def meeting_file(path: Path, options: DraftOptions) -> MeetingFile:
     return load_meeting(found) if found else MeetingFile()
 
 
+def _say(line: str) -> None:
+    return None
+
+
 def draft(path: Path, options: DraftOptions = DraftOptions(),
-          progress: Progress = _quiet) -> Minutes:
+          progress: Progress = _quiet, report: Callable[[str], None] = _say) -> Minutes:
     """Return draft minutes of the meeting in ``path``."""
     from . import nlp
     from .final import finish
@@ -84,6 +91,8 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
 
     if options.engine not in ENGINES:
         raise UsageError(f"unknown engine {options.engine!r}; choose one of {', '.join(ENGINES)}")
+    if options.engine == "llm" and options.model is None:
+        raise UsageError("--engine llm needs --model PATH.gguf (a model file on this machine)")
     if not path.is_file():
         raise InputError("no such file", path=str(path))
     mfile = meeting_file(path, options)
@@ -108,18 +117,75 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
     progress("parse", 0, len(transcript.utterances))
     parsed = nlp.parse(transcript.utterances)
     progress("parse", len(transcript.utterances), len(transcript.utterances))
-    segments = segment(transcript, parsed, options.segmentation)
+    backend = None
+    seg_options = options.segmentation
+    if options.engine == "llm":
+        from .relay.llm import LlamaBackend, words_budget
+
+        backend = LlamaBackend(options.model, threads=options.threads,  # type: ignore[arg-type]
+                               context_tokens=options.context)
+        seg_options = replace(seg_options, max_words=min(seg_options.max_words,
+                                                         words_budget(backend)))
+    segments = segment(transcript, parsed, seg_options)
 
     ctx = ReadContext(transcript, parsed, directory)
     readers: list = [RulesReader(ctx), MotionReader(ctx)]
-    if options.engine == "llm":  # pragma: no cover - wired by the llm reader
-        raise UsageError("the llm engine is not available in this version; use --engine rules")
+    llm_reader = None
+    if backend is not None:
+        from .relay.llm import LlmReader
+
+        llm_reader = LlmReader(ctx, backend)
+        readers.append(_Reporting(llm_reader, report))
     reader = Combined(tuple(readers))
     progress("relay", 0, len(segments))
-    result = relay(segments, reader)
-    progress("relay", len(segments), len(segments))
-    notes = list(mfile.warnings) + list(transcript.warnings[:20])
+    result = relay(segments, _Counting(reader, progress, len(segments)))
+    run_notes: list[str] = []
+    if llm_reader is not None:
+        from .relay.llm import describe
+
+        run_notes.append(describe(llm_reader.summary()))
+    notes = run_notes + list(mfile.warnings) + list(transcript.warnings[:20])
     if len(transcript.warnings) > 20:
         notes.append(f"... and {len(transcript.warnings) - 20} more reading warnings")
     return finish(transcript, segments, result, parsed, directory,
                   unknown_speakers=unknown, template=options.template or "", notes=notes)
+
+
+@dataclass
+class _Counting:
+    """A reader wrapper that reports relay progress; it passes everything through."""
+
+    reader: object
+    progress: Progress
+    total: int
+    done: int = 0
+
+    @property
+    def name(self) -> str:
+        return self.reader.name  # type: ignore[attr-defined,no-any-return]
+
+    def read(self, ledger, segment):  # type: ignore[no-untyped-def]
+        ops = self.reader.read(ledger, segment)  # type: ignore[attr-defined]
+        self.done += 1
+        self.progress("relay", self.done, self.total)
+        return ops
+
+
+@dataclass
+class _Reporting:
+    """Wraps the llm reader to print tokens in/out and time after each step."""
+
+    reader: object
+    report: Callable[[str], None]
+
+    @property
+    def name(self) -> str:
+        return self.reader.name  # type: ignore[attr-defined,no-any-return]
+
+    def read(self, ledger, segment):  # type: ignore[no-untyped-def]
+        ops = self.reader.read(ledger, segment)  # type: ignore[attr-defined]
+        last = self.reader.log[-1]  # type: ignore[attr-defined]
+        self.report(f"segment {segment.index + 1}: {last.tokens_in} tokens in, "
+                    f"{last.tokens_out} out, {last.seconds:.1f} s, {last.accepted} kept, "
+                    f"{sum(last.dropped.values())} dropped")
+        return ops
