@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import gc
 from collections.abc import Iterator
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -58,7 +58,6 @@ class DecodeReport:
 
     skipped_packets: int = 0
     decoded_seconds: float = 0.0
-    notes: list[str] = field(default_factory=list)
 
 
 def _av() -> Any:
