@@ -16,13 +16,13 @@ from ..errors import UsageError
 from ..model import Minutes
 from .blocks import Document
 from .board import build_board
-from .data import actions_csv, render_json, to_json_dict
+from .data import actions_csv, render_json, schema, to_json_dict
 from .general import build_general
 from .markdown import write_markdown
 from .text import clock
 
 __all__ = ["RENDERERS", "TEMPLATES", "actions_csv", "build", "clock", "render",
-           "render_docx", "render_json", "render_markdown", "to_json_dict"]
+           "render_docx", "render_json", "render_markdown", "schema", "to_json_dict"]
 
 TEMPLATES: dict[str, Callable[[Minutes], Document]] = {
     "general": build_general,

@@ -19,6 +19,15 @@ from .text import clock, csv_safe
 SCHEMA_VERSION = 1
 
 
+def schema() -> dict[str, Any]:
+    """Return the JSON Schema (draft 2020-12) of the JSON output."""
+    from importlib.resources import files
+
+    text = files("minutes").joinpath("schema/minutes.schema.json").read_text("utf-8")
+    data: dict[str, Any] = json.loads(text)
+    return data
+
+
 def _date(value: dt.date | None) -> str | None:
     return value.isoformat() if value else None
 
