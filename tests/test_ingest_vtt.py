@@ -181,7 +181,8 @@ def test_markup_is_stripped(tmp_path: Path) -> None:
             "<v Ada><b>Bold</b>, <i>italic</i>, <u>under</u> <c.loud.red>classed</c> "
             "<00:00:02.000>timed <lang fr>oui</lang> <ruby>漢<rt>kan</rt></ruby>字\n")
     t = read_transcript(write(tmp_path, text))
-    assert cues(t) == [("Ada", Cue("m1", 1.0, 3.0, "Bold, italic, under classed timed oui 漢字", 4))]
+    plain = "Bold, italic, under classed timed oui 漢字"
+    assert cues(t) == [("Ada", Cue("m1", 1.0, 3.0, plain, 4))]
 
 
 def test_entities_are_unescaped(tmp_path: Path) -> None:

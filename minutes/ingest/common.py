@@ -47,6 +47,8 @@ def decode(data: bytes, path: str, encoding: str | None = None) -> str:
             if data.startswith(bom):
                 codec, skip = name, len(bom)
                 break
+        if not skip:
+            _refuse_wide(data, path)
         try:
             text = data[skip:].decode(codec)
         except UnicodeDecodeError as err:
@@ -57,6 +59,18 @@ def decode(data: bytes, path: str, encoding: str | None = None) -> str:
                 path=path, line=data.count(b"\n", 0, at) + 1) from None
     _refuse_binary(text, path)
     return text
+
+
+def _refuse_wide(data: bytes, path: str) -> None:
+    """Raise when the bytes look like UTF-16 written without a byte order mark."""
+    head = data[:4096]
+    even, odd = head[0::2].count(0), head[1::2].count(0)
+    # ASCII text in UTF-16 has a NUL in every other byte, all on one side
+    for nuls, other, name in ((odd, even, "utf-16-le"), (even, odd, "utf-16-be")):
+        if nuls * 4 > len(head) and other == 0:
+            raise InputError(f"has a NUL in every other byte: it looks like {name.upper()} "
+                             f"text without a byte order mark; read it with --encoding {name}",
+                             path=path, line=1)
 
 
 def _refuse_binary(text: str, path: str) -> None:
