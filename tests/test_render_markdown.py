@@ -199,7 +199,15 @@ def test_board_motions_fall_in_the_item_whose_time_range_holds_them() -> None:
     item5 = md[md.index("### Item 5: Opening hours"):md.index("### Item 6")]
     assert "Motion M3" in item5 and "Motion M4" not in item5
     item1 = md[md.index("### Item 1:"):md.index("### Item 4")]
+    assert "- D1 [00:00:41] Agreed: The annual book sale is held on 12 April." in item1
+    quiet = replace(samples.BOARD, ledger=replace(samples.BOARD.ledger, decisions=()))
+    md = render(quiet, "md").decode()
+    item1 = md[md.index("### Item 1:"):md.index("### Item 4")]
     assert "Discussed; no motion or decision was recorded." in item1
+
+
+def test_empty_template_means_general() -> None:
+    assert render(replace(samples.GENERAL, template=""), "md") == render(samples.GENERAL, "md")
 
 
 def test_board_partial_counts_and_clock_less_events() -> None:

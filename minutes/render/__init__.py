@@ -33,7 +33,8 @@ TEMPLATES: dict[str, Callable[[Minutes], Document]] = {
 def build(minutes: Minutes) -> Document:
     """Return the document blocks of ``minutes`` in its template."""
     try:
-        template = TEMPLATES[minutes.template]
+        # "" is what a meeting file says when it leaves the choice open: the general one.
+        template = TEMPLATES[minutes.template or "general"]
     except KeyError:
         raise UsageError(
             f"unknown minutes template {minutes.template!r}; choose one of: "

@@ -20,7 +20,7 @@ from .parts import (
     source_name,
     status_line,
 )
-from .text import clock, day, span
+from .text import clock, day, or_dash, span
 
 
 def title_of(minutes: Minutes) -> str:
@@ -90,7 +90,7 @@ def build_general(minutes: Minutes) -> Document:
         blocks += [section("Motions"), motion_table(ledger.motions, record)]
     if ledger.pending_proposals:
         blocks += [section("Proposals still open"), Bullets(tuple(
-            line(lit(f"{p.id} [{clock(p.time)}] "), p.text, f" — put by {p.by}")
+            line(lit(f"{p.id} [{clock(p.time)}] "), p.text, f" — put by {or_dash(p.by)}")
             for p in ledger.pending_proposals))]
     if ledger.open_questions:
         blocks += [section("Open questions"), question_list(ledger.open_questions)]

@@ -190,6 +190,10 @@ BOARD = Minutes(
     ),
     summary=(),
     ledger=Ledger(
+        decisions=(
+            Decision("D1", "The annual book sale is held on 12 April.", 41.0, "Helena Brandt",
+                     (ev(BU[2], "the book sale is on 12 April"),)),
+        ),
         motions=(
             Motion("M1", "That the Board adopt the 2025 operating budget of $412,000.",
                    "Joyce Okafor", "Kenji Sato", Vote(method="voice"), "carried", 400.0,
