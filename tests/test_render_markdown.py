@@ -132,6 +132,9 @@ def test_approved_minutes_say_so_instead_of_draft() -> None:
 
 
 def test_board_opening_names_the_meeting_and_officers() -> None:
+    # Robert's Rules of Order Revised (1915), section 60, essentials (a)-(e) and (g): kind
+    # of meeting, assembly, date and place, chairman and secretary, previous minutes,
+    # hours of meeting and adjournment.
     md = render(samples.BOARD, "md").decode()
     assert ("A regular meeting of the Board of Trustees of the Riverbend Library Trust was "
             "held on 2025-02-11 (Tuesday) at Community Room, Riverbend Library. The meeting "
@@ -150,8 +153,8 @@ def test_board_lists_public_commenters_without_quoting_them() -> None:
 
 
 def test_board_records_the_mover_but_not_the_seconder_by_default() -> None:
-    # Robert's Rules of Order (1915), on the minutes: the name of the mover is entered,
-    # the seconder's is not, unless the body's own rules ask for it.
+    # Robert's Rules of Order Revised (1915), section 60 "The Minutes": "Generally the name
+    # is recorded of the member who introduced a main motion, but not of the seconder."
     md = render(samples.BOARD, "md").decode()
     record = md[md.index("## Record of business"):md.index("## Motion register")]
     assert "moved by Joyce Okafor" in record

@@ -1,10 +1,13 @@
 """The board template: formal minutes, a record of what was done rather than what was said.
 
-What goes in follows Robert's Rules of Order (1915, public domain), section 60 as we
-remember it: the kind of meeting, the body, date and place, the presiding officer and
-secretary, whether the previous minutes were approved, every main motion with its
-mover and its result, and the time of adjournment. The seconder is named only where the
-body's rules ask for it (``Roster.record_seconder``); Robert's records the mover alone.
+What goes in follows Robert's Rules of Order Revised (1915, public domain), section 60
+"The Minutes": the kind of meeting, the name of the assembly, date and place, the
+presence of the chairman and secretary, whether the previous minutes were approved, the
+main motions, and the hours of meeting and adjournment; "generally the name is recorded
+of the member who introduced a main motion, but not of the seconder". So the seconder is
+named only where the body's rules ask for it (``Roster.record_seconder``). Section 60
+leaves withdrawn main motions out; this draft keeps them, marked withdrawn, so the clerk
+sees everything and strikes what the body's practice omits.
 """
 
 from __future__ import annotations
