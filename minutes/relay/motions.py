@@ -369,7 +369,7 @@ _CALL = re.compile(
     re.I)
 _HANDS = re.compile(r"\b(?:raise\s+your\s+hands?|show\s+of\s+hands|hands\s+up|raise\s+a\s+hand|"
                     r"by\s+hand)\b", re.I)
-_ROLL = re.compile(r"\b(?:call\s+the\s+roll|roll[\s-]+call|call\s+roll|take\s+the\s+roll|"
+ROLL_CALL = re.compile(r"\b(?:call\s+the\s+roll|roll[\s-]+call|call\s+roll|take\s+the\s+roll|"
                    r"calling\s+the\s+roll|call\s+the\s+vote)\b", re.I)
 _OPPOSED_CALL = re.compile(r"\b(?:opposed|against|nays?|noes|no\s+votes?|any\s+nos|contrary)\b",
                            re.I)
@@ -392,7 +392,7 @@ _ANNOUNCE = re.compile(
 _ANNOUNCE_BARE = re.compile(r"^(?:(?:okay|so|all\s+right|great|good|thank\s+you)[, ]+)*(?P<verb>"
                             r"carried|carries|passed|passes|approved|adopted|failed|fails)"
                             r"(?:\s+unanimously)?[.!]*$", re.I)
-_HYPOTHETICAL = re.compile(r"\b(?:if|whether|unless|until|once|when|hope|hoping|think|assume|"
+HYPOTHETICAL = re.compile(r"\b(?:if|whether|unless|until|once|when|hope|hoping|think|assume|"
                            r"before|should|would|could|might|so\s+that|expect|how)\b", re.I)
 _CONSENT = re.compile(r"\bwithout\s+objection\b|\b(?:is|are)\s+there\s+(?:any\s+)?objections?\b"
                       r"|\bany\s+objections?\b|\bif\s+there\s+(?:is|are|'s)\s+no\s+objections?\b"
@@ -418,7 +418,7 @@ def _announced(unit: Unit) -> tuple[str | None, str]:
     m = _ANNOUNCE.search(low)
     if not m:
         return None, ""
-    if _HYPOTHETICAL.search(low[: m.start()]) or _HYPOTHETICAL.search(m.group(0)):
+    if HYPOTHETICAL.search(low[: m.start()]) or HYPOTHETICAL.search(m.group(0)):
         return None, ""
     if m.group("side"):
         return ("carried" if m.group("side") in ("ayes", "yeas") else "failed"), ""
@@ -715,7 +715,7 @@ class _Run:
             end = self.consent(pos)
             if end is not None:
                 return end
-        if _ROLL.search(text) and self.floor() is not None:
+        if ROLL_CALL.search(text) and self.floor() is not None:
             end = self.vote(pos, "roll_call")
             if end is not None:
                 return end
@@ -763,11 +763,14 @@ class _Run:
             if _NOT_A_MOTION.match(raw):
                 return False
             wording = clause(raw)
-            if len(wording.split()) <= 2 or re.fullmatch(r"(?i)(?:approve|adopt|accept)\s*(?:it|"
-                                                          r"that|this)?", wording):
+            vague = re.match(r"(?i)^(?:approve|adopt|accept|do)\s+(?:them|it|that|this|those|so)"
+                             r"\b(?P<rest>.*)$", wording)
+            if len(wording.split()) <= 2 or vague:
                 proposal = self.proposal(u)
-                if proposal is not None:
-                    wording = self.proposal_wording(proposal) or wording
+                asked = self.proposal_wording(proposal) if proposal is not None else ""
+                if asked:
+                    # "I move we approve them with..." answers "a motion to approve the minutes"
+                    wording = asked + (vague.group("rest") if vague else "")
         elif _SO_MOVED.match(text):
             proposal = self.proposal(u)
             if proposal is None:
@@ -997,7 +1000,7 @@ class _Run:
                 tally.for_ = tally.against = tally.abstain = None
                 tally.heard.clear()
                 tally.unclear.clear()
-                if _ROLL.search(text):
+                if ROLL_CALL.search(text):
                     tally.method = "roll_call"
                     tally.last = u
                     return self.roll(tally, pos + 1) or pos + 1
