@@ -114,6 +114,18 @@ def clean_text(text: str) -> str:
     return _WS_RUN.sub(" ", text).strip(" ")
 
 
+# The common cue, "<v Name>plain text" (optionally closed), gives the same pieces as the
+# full parse; reading it with one regex halves the cost on long caption files.
+_SIMPLE = re.compile(r"<v(?:\.[^\t\n\x0c .>]*)*[\t\n\x0c ]([^>&]*)>([^<&]*)(?:</v>)?\Z")
+
+
 def cue_text_pieces(text: str) -> list[tuple[str, str]]:
     """Return the (voice, plain text) pieces of one cue's text."""
+    if "<" not in text and "&" not in text:
+        plain = clean_text(text)
+        return [("", plain)] if plain else []
+    simple = _SIMPLE.match(text)
+    if simple:
+        plain = clean_text(simple.group(2))
+        return [(_annotation(simple.group(1)), plain)] if plain else []
     return voice_pieces(parse_cue_text(text))
