@@ -22,7 +22,7 @@ from __future__ import annotations
 import math
 from collections import Counter
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -91,25 +91,59 @@ def segment(
         return ()
     lemmas = [content_lemmas(doc) for doc in parsed.docs]
     gaps = cohesion(utterances, lemmas, options)
-    starts = _boundaries(utterances, gaps, options)
-    starts = _within_budget(utterances, gaps, starts, options)
+    agenda = transcript.meeting.agenda
+    if agenda:
+        groups = _agenda_groups(utterances, gaps, lemmas, agenda, options)
+    else:
+        groups = [(start, None) for start in _boundaries(utterances, gaps, options)]
+    starts = _within_budget(utterances, gaps, [g for g, _ in groups], options)
     segments = [
         _make(n, utterances, a, b - 1) for n, (a, b) in
         enumerate(zip(starts, starts[1:] + [len(utterances)], strict=True))
     ]
     phrases = [_phrases(parsed.docs[s.first : s.last + 1]) for s in segments]
     headings = _headings(phrases)
-    agenda = transcript.meeting.agenda
-    aligned = align(segments, lemmas, agenda) if agenda else [None] * len(segments)
     out = []
     seen: Counter[int] = Counter()
-    for seg, (title, keywords), item in zip(segments, headings, aligned, strict=True):
+    g = 0
+    for seg, (title, keywords) in zip(segments, headings, strict=True):
+        while g + 1 < len(groups) and groups[g + 1][0] <= seg.first:
+            g += 1
+        item = groups[g][1]  # budget splits keep the item of the part they split
         if item is not None:
             seen[item] += 1
             title = agenda[item].title + (" (continued)" if seen[item] > 1 else "")
         out.append(Segment(seg.index, seg.first, seg.last, seg.start, seg.end, seg.utterances,
                            title=title, keywords=keywords, agenda_item=item))
     return tuple(out)
+
+
+# An agenda says how many topics to expect: cut finely, align the small parts to the items,
+# then join neighbours that discuss the same item.
+AGENDA_GRANULARITY = -0.5
+AGENDA_MIN_DURATION = 45.0
+
+
+def _agenda_groups(utterances: Sequence[Utterance], gaps: Gaps, lemmas: Sequence[Sequence[str]],
+                   agenda: Sequence[AgendaItem], options: SegmentOptions
+                   ) -> list[tuple[int, int | None]]:
+    """Return (first utterance, agenda item or None) of each part of an agenda meeting."""
+    fine = replace(options, granularity=min(options.granularity, AGENDA_GRANULARITY),
+                   min_duration=min(options.min_duration, AGENDA_MIN_DURATION))
+    starts = _boundaries(utterances, gaps, fine)
+    parts = [_make(n, utterances, a, b - 1) for n, (a, b) in
+             enumerate(zip(starts, starts[1:] + [len(utterances)], strict=True))]
+    items = align(parts, lemmas, agenda)
+    groups: list[tuple[int, int | None]] = []
+    for start, item in zip(starts, items, strict=True):
+        if groups and (item is None or item == groups[-1][1]):
+            continue  # talk that matches no item stays with the item before it
+        if groups and groups[-1][1] is None and len(groups) == 1 and \
+                utterances[start].start - utterances[0].start < options.min_duration:
+            groups[-1] = (0, item)  # a short opening belongs to the first item
+            continue
+        groups.append((start, item))
+    return groups
 
 
 def not_discussed(segments: Sequence[Segment], agenda: Sequence[AgendaItem]) -> tuple[str, ...]:
