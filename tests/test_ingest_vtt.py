@@ -309,3 +309,11 @@ def test_header_must_be_followed_by_space_or_line_end(tmp_path: Path) -> None:
 def test_header_only_has_no_cues(tmp_path: Path) -> None:
     with pytest.raises(InputError, match="no cues"):
         read_transcript(write(tmp_path, "WEBVTT\n\nNOTE nothing here\n"))
+
+
+def test_warnings_are_bounded(tmp_path: Path) -> None:
+    broken = "".join(f"\n00:00:{i % 60:02d}.00x --> 00:00:59.000\nbad {i}\n" for i in range(600))
+    t = read_transcript(write(tmp_path, "WEBVTT\n" + broken + "\n00:01.000 --> 00:02.000\nok\n"))
+    assert [u.text for u in t.utterances] == ["ok"]
+    assert len(t.warnings) == 501 and t.warnings[-1] == "100 more warnings not shown"
+    assert t.warnings[0].startswith("line 3:") and t.warnings[499].startswith(f"line {3 * 500}:")

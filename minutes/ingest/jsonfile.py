@@ -65,8 +65,9 @@ def _row(item: Any, number: int, notes: Notes) -> tuple[str, Cue] | None:
     cue_id = item.get("cue")
     if cue_id is not None and not isinstance(cue_id, str):
         cue_id = str(cue_id) if isinstance(cue_id, int) and not isinstance(cue_id, bool) else None
-    start, end, text = item.get("start"), item.get("end", item.get("start")), item.get("text")
-    if not (_number(start) and _number(end)):
+    start, end = _seconds(item.get("start")), _seconds(item.get("end", item.get("start")))
+    text = item.get("text")
+    if start is None or end is None:
         notes.add(f"{where} has no numeric start and end; skipped", cue=cue_id)
         return None
     if not isinstance(text, str) or not text.strip():
@@ -74,19 +75,20 @@ def _row(item: Any, number: int, notes: Notes) -> tuple[str, Cue] | None:
         return None
     speaker = item.get("speaker")
     label = speaker.strip() if isinstance(speaker, str) else ""
-    times = check_times(float(start), float(end), notes, line=None, cue=cue_id or where)
+    times = check_times(start, end, notes, line=None, cue=cue_id or where)
     if times is None:
         return None
     return label, Cue(id=cue_id, start=times[0], end=times[1], text=clean_text(text))
 
 
-def _number(value: Any) -> bool:
+def _seconds(value: Any) -> float | None:
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        return False
+        return None
     try:
-        return math.isfinite(float(value))
+        seconds = float(value)
     except OverflowError:  # an integer too large for a float
-        return False
+        return None
+    return seconds if math.isfinite(seconds) else None
 
 
 def _meeting(data: Any, notes: Notes) -> MeetingInfo:
