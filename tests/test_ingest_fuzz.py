@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 from pathlib import Path
 
 import pytest
@@ -49,6 +50,12 @@ def read_bytes(folder: Path, data: bytes, ext: str) -> Transcript | None:
         assert str(err)  # every error says something
         return None
     sane(transcript)
+    if transcript.format in ("vtt", "srt") and not data.startswith((b"\xff", b"\xfe")):
+        # each cue names the line that holds its timing
+        lines = re.split(r"\r\n|\r|\n", data.decode("utf-8-sig"))
+        assert all("-->" in lines[c.line - 1] for u in transcript.utterances for c in u.cues
+                   if c.line is not None)
+        assert all(c.line is not None for u in transcript.utterances for c in u.cues)
     return transcript
 
 
