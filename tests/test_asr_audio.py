@@ -135,3 +135,10 @@ def test_importing_the_package_loads_no_speech_libraries() -> None:
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True)
     assert out.stdout.strip() == "[]"
+
+
+def test_recordings_are_known_by_suffix() -> None:
+    from minutes.asr import is_recording
+
+    assert is_recording("board.M4A") and is_recording(Path("call.webm"))
+    assert not is_recording("board.vtt") and not is_recording("notes.txt")

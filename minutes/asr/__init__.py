@@ -22,7 +22,9 @@ Public interface:
   transcribe many files; ``ScriptedRecognizer`` is the fake for tests.
 - ``ensure_model(cache_dir=None) -> Path``: the assembled, verified bundled model's folder.
 - ``write_vtt(transcript) -> str``, ``write_srt(transcript, speakers=True) -> str``.
-- ``AUDIO_EXTENSIONS``: the suffixes the CLI should treat as recordings.
+- ``AUDIO_EXTENSIONS``, ``is_recording(path)``: the suffixes the CLI treats as recordings.
+- ``minutes.asr.progress.ProgressLine(quiet=False)``: a ``\\r``-updated stderr line usable as
+  ``progress`` (minutes done of total, x real time, time left), for callers without click.
 
 Every utterance carries its ``Cue``s, ids "1", "2", ... in order, which are the cue ids of the
 WebVTT that ``write_vtt`` writes, so evidence cited from the transcript points into that file.
@@ -30,7 +32,7 @@ WebVTT that ``write_vtt`` writes, so evidence cited from the transcript points i
 
 from __future__ import annotations
 
-from .audio import AUDIO_EXTENSIONS, SAMPLE_RATE, AudioInfo, probe
+from .audio import AUDIO_EXTENSIONS, SAMPLE_RATE, AudioInfo, is_recording, probe
 from .backend import (
     DecodeSettings,
     Recognition,
@@ -60,6 +62,7 @@ __all__ = [
     "default_cache_dir",
     "ensure_model",
     "is_assembled",
+    "is_recording",
     "load_recognizer",
     "probe",
     "timestamp",

@@ -28,6 +28,11 @@ _FRAME = 320  # 20 ms at 16 kHz: the unit of the loudness search
 _SMOOTH = 15  # frames (300 ms) averaged, so a cut lands in a pause, not between two syllables
 
 
+def is_recording(path: Path | str) -> bool:
+    """Return True when the file's suffix is one minutes reads as a recording."""
+    return Path(path).suffix.lower() in AUDIO_EXTENSIONS
+
+
 @dataclass(frozen=True)
 class AudioInfo:
     """What the container says about a recording before we decode it."""
