@@ -1,20 +1,24 @@
 """Topic segmentation: cut a transcript into parts a reader (and one relay step) can hold.
 
 Boundaries come from lexical cohesion, after TextTiling (Hearst 1997): at every
-gap between utterances, compare the content words just before it with those
-just after it (lemmas from the shared spaCy parse, fillers and stop words
-removed, weighted by how unevenly a word spreads over the meeting); smooth the
-curve; score each valley by its depth (how far the curve climbs again on both
-sides). Valleys deeper than ``mean + granularity * std`` become boundaries,
-deepest first, each kept only if it leaves at least ``min_duration`` on both
-sides. A boundary is then snapped to the best nearby gap: a long pause or a
-change of speaker. Segments longer than ``max_duration`` or ``max_words`` are
-split at their weakest cohesion point until none is.
+gap between utterances, compare the content words said in the ``window``
+seconds before it with those said after it (lemmas from the shared spaCy parse,
+fillers and stop words removed, IDF-weighted over 1-minute blocks so words heard
+all meeting long count for little). A share (``speaker_weight``) of the curve
+compares who was speaking before and after, since meetings often move on with a
+new presenter. The curve is smoothed and every valley scored by its depth (the
+rise to the highest point within ``window`` on each side). Valleys deeper than
+``mean + granularity * std`` become boundaries, deepest first, each kept only
+if it leaves ``min_duration`` on both sides, then snapped to the best gap within
+``snap`` seconds: a long pause or a change of speaker. Parts over
+``max_duration`` or ``max_words`` are split into the fewest parts that fit, at
+the weakest cohesion points (dynamic programming over the gaps).
 
-When the meeting has an agenda, segments are aligned to its items by content
-and order (a monotone alignment by dynamic programming) and titled by the item;
-``not_discussed`` lists items no segment matched. Otherwise a title is built
-from the segment's most distinctive noun phrases (TF-IDF over segments).
+With an agenda, the cut is finer and the parts are aligned to the items by
+content and order (a monotone alignment by dynamic programming); neighbours on
+one item are joined and titled by it, and ``not_discussed`` lists items no part
+matched. Otherwise a title is built from the segment's most distinctive noun
+phrases (TF-IDF over segments), e.g. "Warehouse lease and moving date".
 """
 
 from __future__ import annotations
@@ -229,12 +233,12 @@ def _speakers(utterances: Sequence[Utterance], starts: np.ndarray, window: float
     b = csum[hi] - csum[gaps]
     norm = np.sqrt((a * a).sum(axis=1) * (b * b).sum(axis=1))
     dot = (a * b).sum(axis=1)
-    return np.divide(dot, norm, out=np.ones_like(dot), where=norm > 0)  # type: ignore[no-any-return]
+    return np.divide(dot, norm, out=np.ones_like(dot), where=norm > 0)
 
 
 def _z(values: np.ndarray) -> np.ndarray:
     std = values.std()
-    return (values - values.mean()) / std if std > 0 else values - values.mean()  # type: ignore[no-any-return]
+    return (values - values.mean()) / std if std > 0 else values - values.mean()
 
 
 def _moving_average(times: np.ndarray, values: np.ndarray, half: float) -> np.ndarray:
@@ -244,7 +248,7 @@ def _moving_average(times: np.ndarray, values: np.ndarray, half: float) -> np.nd
     csum = np.concatenate([[0.0], np.cumsum(values)])
     lo = np.searchsorted(times, times - half, side="left")
     hi = np.searchsorted(times, times + half, side="right")
-    return (csum[hi] - csum[lo]) / (hi - lo)  # type: ignore[no-any-return]
+    return (csum[hi] - csum[lo]) / (hi - lo)
 
 
 def _depths(times: np.ndarray, score: np.ndarray, reach: float) -> np.ndarray:
