@@ -211,7 +211,7 @@ _ANSWERS = {"aye": "aye", "ayes": "aye", "yes": "aye", "yea": "aye", "yeah": "ay
             "abstain": "abstain", "abstaining": "abstain", "abstention": "abstain",
             "abstains": "abstain", "pass": "abstain", "recuse": "abstain",
             "recusing": "abstain",
-            "present": "present", "here": "present"}
+            "present": "present", "here": "present", "absent": "absent"}
 
 
 def answer_of(unit: Unit) -> str | None:
@@ -344,7 +344,8 @@ _SECOND = re.compile(r"^(?:(?:yes|yeah|okay|ok|and|oh|sure|i'm\s+happy\s+to)[, ]
                      r"\s+will|\s+would|'d|\s+can)?\s+)?(?:be\s+(?:happy|glad)\s+to\s+)?"
                      r"second(?:ed|s)?(?:\s+(?:that|it|this|the\s+motion|the\s+amendment|that"
                      r"\s+motion|the\s+main\s+motion|from\s+me))?(?:\s+motion)?(?:,?\s+(?:madam|"
-                     r"mister|mr\.?)\s+\w+)?[.!]*$", re.I)
+                     r"mister|mr\.?)\s+\w+)?(?:,?\s+(?:so\s+(?:that\s+)?we\s+can\s+(?:discuss|talk"
+                     r"\s+about)\s+it|for\s+(?:the\s+purpose\s+of\s+)?discussion))?[.!]*$", re.I)
 _MOVED_BY = re.compile(r"\b(?:moved|motion|made)\s+(?:by|from)\s+(?P<who>[\w'.-]+(?:\s+[\w'.-]+)"
                        r"{0,3})", re.I)
 _SECONDED_BY = re.compile(r"\bsecond(?:ed)?\s+(?:by|from)\s+(?P<who>[\w'.-]+(?:\s+[\w'.-]+)"
@@ -392,8 +393,16 @@ _ANNOUNCE = re.compile(
 _ANNOUNCE_BARE = re.compile(r"^(?:(?:okay|so|all\s+right|great|good|thank\s+you)[, ]+)*(?P<verb>"
                             r"carried|carries|passed|passes|approved|adopted|failed|fails)"
                             r"(?:\s+unanimously)?[.!]*$", re.I)
-HYPOTHETICAL = re.compile(r"\b(?:if|whether|unless|until|once|when|hope|hoping|think|assume|"
-                           r"before|should|would|could|might|so\s+that|expect|how)\b", re.I)
+HYPOTHETICAL = re.compile(r"\b(?:if|whether|unless|until|once|when|hope|hoping|assume|before|"
+                          r"should|would|could|might|so\s+that|expect|how)\b", re.I)
+HEDGED = re.compile(r"\b(?:i\s+think|i\s+believe|i\s+guess|i\s+suppose|probably|seems?\s+(?:like"
+                    r"|to)|sounds\s+like|looks\s+like)\b", re.I)
+ADJOURNED = re.compile(
+    r"\b(?:we|this\s+meeting|the\s+meeting|meeting|this\s+session|the\s+session|session|"
+    r"board|council|committee)\s*(?:is|are|stands?|'re|was|will\s+stand)\s+(?:now\s+|hereby\s+|"
+    r"officially\s+)?adjourned\b"
+    r"|\bi\s+(?:now\s+|hereby\s+)?(?:declare\s+(?:the|this|our)\s+meeting\s+adjourned|adjourn\s+"
+    r"(?:the|this|our)\s+meeting)\b|\b(?:the\s+)?meeting\s+adjourned\b|^adjourned\b", re.I)
 _CONSENT = re.compile(r"\bwithout\s+objection\b|\b(?:is|are)\s+there\s+(?:any\s+)?objections?\b"
                       r"|\bany\s+objections?\b|\bif\s+there\s+(?:is|are|'s)\s+no\s+objections?\b"
                       r"|\bhearing\s+no\s+objections?\b|\bseeing\s+no\s+objections?\b|"
@@ -403,14 +412,26 @@ _GRANTED = re.compile(r"\b(?:hearing|seeing)\s+(?:none|no\s+(?:objections?|one|h
 _OBJECT = re.compile(r"^(?:(?:yes|yeah|well|actually|sorry)[, ]+)*(?:i\s+(?:do\s+)?object|"
                      r"objection)\b", re.I)
 _DISPOSE = re.compile(r"\b(?P<verb>postpone[sd]?|tabled?|refer(?:red)?|defer(?:red)?)\b", re.I)
+INLINE_ANSWER = re.compile(r"(?i)^(?P<who>[\w'. -]+?)(?:[,:]\s+(?:[\w' ]+,\s+)?|\s+(?:votes?|"
+                            r"is)\s+)(?:votes?\s+)?(?P<how>aye|yes|yea|no|nay|abstains?|present|here|"
+                            r"absent)[.!]*$")
+_NEXT_ITEM = re.compile(r"(?i)^(?:okay,?\s+|all\s+right,?\s+|so,?\s+)?(?:item\s+\w+|next\s+item|"
+                        r"moving\s+on|let'?s\s+move\s+on|next\s+up|new\s+business|old\s+business)"
+                        r"\b")
 _NOUN_VERB = {"approval": "approve", "adoption": "adopt", "acceptance": "accept"}
 _FAILED_WORDS = ("fail", "defeat", "lost", "not", "n't", "noes", "nays", "nos")
 
 
-def _announced(unit: Unit) -> tuple[str | None, str]:
-    """Return the outcome a sentence announces ("carried"/"failed") and what it names."""
+def _announced(unit: Unit, *, hedged: bool = False) -> tuple[str | None, str]:
+    """Return the outcome a sentence announces ("carried"/"failed") and what it names.
+
+    A hedged announcement ("I think that carries") counts only when ``hedged`` is allowed
+    (inside a vote the reader is following); the caller flags it for the clerk.
+    """
     low = unit.clean.lower()
     if unit.clean.rstrip().endswith("?"):
+        return None, ""
+    if HEDGED.search(low) and not hedged:
         return None, ""
     m = _ANNOUNCE_BARE.match(low)
     if m:
@@ -439,6 +460,74 @@ def _hint(text: str) -> str | None:
     return None
 
 
+_ORDINAL = {w: i + 1 for i, w in enumerate((
+    "first", "second", "third", "fourth", "fifth", "sixth", "seventh", "eighth", "ninth", "tenth",
+    "eleventh", "twelfth", "thirteenth", "fourteenth", "fifteenth", "sixteenth", "seventeenth",
+    "eighteenth", "nineteenth", "twentieth"))} | {"thirtieth": 30}
+_ORDINAL |= {f"twenty-{w}": 20 + n for w, n in list(_ORDINAL.items())[:9]}
+_ORDINAL |= {f"twenty {w}": 20 + n for w, n in list(_ORDINAL.items())[:9]}
+_ORDINAL |= {"thirty-first": 31, "thirty first": 31}
+_MONTHS = ("january|february|march|april|may|june|july|august|september|october|november|"
+           "december")
+_NUMBER_WORD = rf"(?:{'|'.join(sorted(_NUM_WORD, key=len, reverse=True))}|hundred|thousand|" \
+               r"million|a)"
+_SPOKEN = re.compile(rf"\b{_NUMBER_WORD}(?:[\s-]+(?:and\s+)?{_NUMBER_WORD})*\b", re.I)
+
+
+def spoken_value(words: str) -> int | None:
+    """Return the value of spoken number words ("forty-eight thousand three hundred")."""
+    total = current = 0
+    seen = False
+    for w in re.split(r"[\s-]+", words.lower()):
+        if w == "and":
+            continue
+        if w == "a":
+            current = current or 1
+            continue
+        if w in _NUM_WORD:
+            current += _NUM_WORD[w]
+        elif w == "hundred":
+            current = (current or 1) * 100
+        elif w == "thousand":
+            total, current = total + (current or 1) * 1000, 0
+        elif w == "million":
+            total, current = total + (current or 1) * 1_000_000, 0
+        else:
+            return None
+        seen = True
+    return total + current if seen else None
+
+
+def figures(text: str) -> str:
+    """Return ``text`` with spoken sums, dates and clock hours as figures (minutes style).
+
+    "twenty-two thousand dollars" -> "$22,000", "January tenth" -> "January 10",
+    "one to five p.m." -> "1 to 5 p.m."; other numbers stay as spoken (common practice).
+    """
+    def money(m: re.Match[str]) -> str:
+        value = spoken_value(m.group(1))
+        return f"${value:,}" if value is not None else m.group(0)
+
+    text = re.sub(rf"\b({_SPOKEN.pattern[2:-2]})\s+dollars\b", money, text, flags=re.I)
+    text = re.sub(r"\$(\d[\d,]*)\s+dollars\b", r"$\1", text, flags=re.I)
+    ordinals = "|".join(sorted(_ORDINAL, key=len, reverse=True))
+    text = re.sub(rf"\b({_MONTHS})\s+(?:the\s+)?({ordinals})\b",
+                  lambda m: f"{m.group(1)} {_ORDINAL[m.group(2).lower()]}", text, flags=re.I)
+    hours = "one|two|three|four|five|six|seven|eight|nine|ten|eleven|twelve"
+    text = re.sub(rf"\b({hours})(\s+to\s+)({hours})(\s+[ap]\.?m\.?)",
+                  lambda m: f"{_NUM_WORD[m.group(1).lower()]}{m.group(2)}"
+                            f"{_NUM_WORD[m.group(3).lower()]}{m.group(4)}", text, flags=re.I)
+    return re.sub(rf"\b({hours})(\s+[ap]\.?m\.?)",
+                  lambda m: f"{_NUM_WORD[m.group(1).lower()]}{m.group(2)}", text, flags=re.I)
+
+
+_SUBJECT = re.compile(
+    r"^(?:the\s+)?(?:board|library|council|committee|commission|trustees|district|city|town|"
+    r"village|county|association|society)\s+(?:should\s+|shall\s+|will\s+|hereby\s+)?"
+    r"(?=(?:approve|adopt|authori[sz]e|accept|stop|start|direct|award|amend|refer|postpone|table|"
+    r"hire|purchase|buy|sell|grant|deny|endorse|support|oppose|establish|create|appoint|extend|"
+    r"waive|suspend|allocate|spend|fund|request|ask|enter|sign|hold|set|change|end|begin|open|"
+    r"close|reduce|increase|raise|lower|eliminate|remove|add|ratify|receive)\b)", re.I)
 _TRAILING = re.compile(r"[,;]?\s*(?:please|thank\s+you|thanks|if\s+that's\s+(?:okay|ok|all\s+"
                        r"right)|i\s+guess|i\s+think|madam\s+chair|mister\s+chair|mr\.?\s+chair|"
                        r"madam\s+president|mr\.?\s+president|chair)\s*$", re.I)
@@ -452,6 +541,9 @@ def clause(raw: str) -> str:
     t = re.sub(r"^(?:that|to)\s+", "", t, flags=re.I)
     t = re.sub(r"^we\s+(?:should\s+|shall\s+|will\s+|would\s+|can\s+|do\s+)?", "", t, flags=re.I)
     t = re.sub(r"^(?:go\s+ahead\s+and|just)\s+", "", t, flags=re.I)
+    # "that the board approve X" -> "approve X": the body is the one moving
+    t = _SUBJECT.sub("", t, count=1)
+    t = figures(t)
     if re.search(r"\b[ap]\.m$", t, re.I):
         t += "."  # the stripped full stop belonged to "p.m."
     return t[:1].upper() + t[1:] if t else t
@@ -508,6 +600,13 @@ def _kind(text: str, floor: Motion | None) -> str:
     return "main"
 
 
+def _trim(phrase: str) -> str:
+    """Return a date or committee phrase without the reasons that follow it."""
+    phrase = re.split(r"(?i),|\s+so\s+(?:that\s+)?|\s+because\s+|\s+in\s+order\s+to\s+|\s+for\s+"
+                      r"(?:a|further)\s+", phrase)[0]
+    return figures(phrase.strip(" .,;"))
+
+
 def disposal_value(kind: str, text: str) -> str | None:
     """Return the date, meeting or committee a motion to postpone/table/refer names."""
     low = clean(text)
@@ -515,14 +614,14 @@ def disposal_value(kind: str, text: str) -> str | None:
         m = re.search(r"\b(?:back\s+)?to\s+(?P<to>(?:the\s+|our\s+)?[\w' -]*?(?:committee|"
                       r"commission|subcommittee|staff|task\s+force|working\s+group|board|panel|"
                       r"council)\b.*)$", low, re.I)
-        return f"to {m.group('to').strip(' .,')}" if m else None
+        return f"to {_trim(m.group('to'))}" if m else None
     m = re.search(r"\b(?P<prep>until|till|to|for)\s+(?P<when>(?:the\s+|our\s+|a\s+)?(?:next|"
                   r"following|january|february|march|april|may|june|july|august|september|"
                   r"october|november|december|monday|tuesday|wednesday|thursday|friday|"
                   r"saturday|sunday|\d|special|regular|later|another|future|june).*)$", low, re.I)
     if m:
         prep = "until" if m.group("prep").lower() in ("until", "till") else m.group("prep").lower()
-        return f"{prep} {m.group('when').strip(' .,')}"
+        return f"{prep} {_trim(m.group('when'))}"
     if re.search(r"\bindefinitely\b", low, re.I):
         return "indefinitely"
     return None
@@ -633,7 +732,7 @@ class MotionReader:
         run = _Run(self, ledger)
         pos = start
         while pos < stop:
-            pos = run.unit(pos)
+            pos = max(run.unit(pos), run.consumed_to)
         return run.ops
 
 
@@ -646,6 +745,7 @@ class _Run:
         self.directory = reader.directory
         self.ledger = ledger
         self.ops: list[Op] = []
+        self.consumed_to = 0  # a look past a vote (the chair restating the motion as amended)
 
     # ------------------------------------------------------------------ ledger helpers
 
@@ -816,13 +916,26 @@ class _Run:
                 return cand
         return None
 
-    @staticmethod
-    def proposal_wording(proposal: Unit) -> str:
+    def proposal_wording(self, proposal: Unit) -> str:
+        """Return the wording of the chair's proposal; a bare "to approve" takes its object
+        from what the chair said just before ("Item two is approval of the minutes...")."""
         m = _ASK.search(proposal.clean)
-        if m and m.group("text"):
-            return proposal_text(m.group("text"))
-        m = re.match(r"(?i)^(?:a\s+)?motion\s+to\s+(?P<text>.+)", proposal.clean)
-        return proposal_text(m.group("text")) if m else ""
+        if not (m and m.group("text")):
+            m = re.match(r"(?i)^(?:a\s+)?motion\s+to\s+(?P<text>.+)", proposal.clean)
+        if not (m and m.group("text")):
+            return ""
+        wording = proposal_text(m.group("text"))
+        verb = re.fullmatch(r"(?i)(approve|adopt|accept)(?:\s+(?:it|that|this|them))?", wording)
+        if verb:
+            for pos in range(proposal.pos - 1, max(-1, proposal.pos - 4), -1):
+                before = self.units[pos]
+                if before.speaker != proposal.speaker:
+                    break
+                o = re.search(r"(?i)\b(?:approval|adoption|acceptance)\s+of\s+(?P<x>.+?)[.?!]*$",
+                              before.clean)
+                if o:
+                    return clause(f"{verb.group(1)} {o.group('x')}")
+        return wording
 
     def context_wording(self, proposal: Unit) -> str:
         """Return the chair's sentence before a bare "do I have a motion?" as the wording."""
@@ -915,7 +1028,14 @@ class _Run:
         if what == "amendment":
             pending = [x for x in pending if x.kind == "amendment"]
         mine = [x for x in pending if x.mover == u.speaker]
-        cands = mine or (pending if self.is_chair(u) else [])
+        if not mine and self.is_chair(u):
+            done = [x for x in self.ledger.motions if x.outcome == "withdrawn" and x.history
+                    and u.utt.index - x.history[-1].evidence.utterance <= 8]
+            if done:  # the chair confirms what the mover asked: record it with the mover's
+                self.change(done[-1].id, "withdrawn", None, u)
+                return True
+        recent = [x for x in pending if u.utt.index - x.evidence[0].utterance <= 40]
+        cands = mine or (recent if self.is_chair(u) else [])
         if not cands:
             return False
         target = max(cands, key=lambda x: x.time)
@@ -969,6 +1089,30 @@ class _Run:
         self.conclude(tally)
         return end
 
+    def announcement(self, tally: _Tally, u: Unit) -> bool:
+        """Take ``u`` as the vote's result if it announces one; return whether it did."""
+        outcome, what = _announced(u, hedged=True)
+        target = self.floor(tally.hint)
+        if outcome is None and target is not None and target.kind == "adjourn" \
+                and ADJOURNED.search(u.clean):
+            outcome = "carried"  # "we're adjourned" is the result of a motion to adjourn
+        if outcome is None:
+            return False
+        if HEDGED.search(u.clean):
+            tally.unclear.append("the chair did not state the result plainly "
+                                 f"(\u201c{u.text}\u201d)")
+        tally.announced, tally.announce, tally.last = outcome, u, u
+        tally.hint = tally.hint or _hint(what)
+        self.merge_counts(tally, u)
+        for later in self.in_utterance(u):
+            if any(n is not None for n in counts_in(later.clean)) or re.search(
+                    r"(?i)\b(?:opposed|abstain|abstaining|unanimous)", later.clean):
+                self.merge_counts(tally, later)
+                tally.last = later
+            else:
+                break
+        return True
+
     def voice(self, tally: _Tally, pos: int) -> int:
         """Read the responses and announcement of a voice (or show-of-hands) vote."""
         phase = "for"
@@ -983,18 +1127,11 @@ class _Run:
                 tally.unclear.append("responses could not be made out in the captions")
             if _NOT_HEARD.search(text) and u.speaker == caller:
                 tally.unclear.append(f"the chair said: \u201c{u.text}\u201d")
-            outcome, what = _announced(u)
-            if outcome:
-                tally.announced, tally.announce, tally.last = outcome, u, u
-                tally.hint = tally.hint or _hint(what)
-                self.merge_counts(tally, u)
-                for later in self.in_utterance(u):
-                    if any(n is not None for n in counts_in(later.clean)) or re.search(
-                            r"(?i)\b(?:opposed|abstain|abstaining|unanimous)", later.clean):
-                        self.merge_counts(tally, later)
-                        tally.last = later
-                    else:
-                        break
+            if self.announcement(tally, u):
+                if other:
+                    tally.unclear.append("discussion resumed after the call for the vote"
+                                         + ("" if tally.heard else ", and no ayes, noes or "
+                                            "abstentions were heard"))
                 return tally.last.pos + 1
             if _RETAKE.search(text):
                 tally.for_ = tally.against = tally.abstain = None
@@ -1008,8 +1145,8 @@ class _Run:
                 tally.last = u
                 pos += 1
                 continue
-            if (pos > tally.call.pos and (_MOVE[0].search(text) or _MOVE[1].search(text)
-                                          or _ASK.search(text))):
+            if pos > tally.call.pos and (_MOVE[0].search(text) or _MOVE[1].search(text)
+                                         or _ASK.search(text) or _NEXT_ITEM.search(text)):
                 break
             how = answer_of(u)
             if u.speaker == caller or how is None:
@@ -1031,9 +1168,9 @@ class _Run:
                     tally.stated = u
                     tally.last = u
                 elif tally.last is not u and how is None:
-                    if len(u.bare.split()) > 8 or _MOVE[0].search(text):
+                    if len(u.bare.split()) > 5 or _MOVE[0].search(text):
                         other += 1
-                    if other >= 2:
+                    if other >= 4:
                         break
                 pos += 1
                 continue
@@ -1043,7 +1180,11 @@ class _Run:
         return tally.last.pos + 1
 
     def roll(self, tally: _Tally, pos: int) -> int | None:
-        """Read a roll-call vote: names called, answers given, then the tally or result."""
+        """Read a roll-call vote: names called, answers given, then the tally or result.
+
+        An answer is credited to its speaker when the captions name a known person, else to
+        the name just called (speech recognition labels speakers "SPEAKER_01").
+        """
         members = len(self.r.roster.members) if self.r.roster else 0
         limit = min(len(self.units), pos + max(40, 4 * members + 12))
         caller: str | None = None
@@ -1052,67 +1193,54 @@ class _Run:
         while pos < limit:
             u = self.units[pos]
             text = u.clean
-            outcome, what = _announced(u)
-            if outcome:
-                tally.announced, tally.announce, tally.last = outcome, u, u
-                tally.hint = tally.hint or _hint(what)
-                self.merge_counts(tally, u)
-                for later in self.in_utterance(u):
-                    if any(n is not None for n in counts_in(later.clean)):
-                        self.merge_counts(tally, later)
-                        tally.last = later
-                return tally.last.pos + 1
-            if any(n is not None for n in counts_in(text)) and answer_of(u) is None:
+            pos += 1
+            if self.announcement(tally, u):
+                break
+            how = answer_of(u)
+            if any(n is not None for n in counts_in(text)) and how is None:
                 self.merge_counts(tally, u)
                 tally.last = u
-                pos += 1
                 continue
-            inline = re.match(r"(?i)^(?P<who>[\w'. -]+?)[,:]?\s+(?:votes?\s+)?(?P<how>aye|yes|"
-                              r"yea|no|nay|abstains?|present)[.!]*$", text)
+            inline = INLINE_ANSWER.match(text)
             if inline and (name := resolve_name(self.directory, inline.group("who"))):
-                how = _ANSWERS[inline.group("how").lower()]
-                if how == "present" and not tally.roll:
-                    return None
-                tally.roll.append((u, name, how))
+                vote = _ANSWERS[inline.group("how").lower()]
+                if vote == "present" and not tally.roll:
+                    return None  # an attendance roll call, not a vote
+                if vote != "present":
+                    tally.roll.append((u, name, vote))
                 caller, called, tally.last = u.speaker, None, u
-                pos += 1
                 continue
             callee = self.called_name(u)
-            if callee is not None and (caller is None or u.speaker == caller):
-                if called is not None:
+            if callee is not None and how is None:
+                if called is not None and called[0] != u.speaker:
                     tally.unclear.append(f"no answer heard from {called[0]}")
+                # (when the one called now calls names, the chair had addressed the clerk)
                 caller, called, tally.last = u.speaker, (callee, u), u
-                pos += 1
                 continue
-            how = answer_of(u)
             if how is not None and u.speaker != caller:
-                if how == "present":
+                if called is None and not tally.roll:
+                    continue  # "Yes." from the clerk before the first name is called
+                if how in ("present", "absent"):
                     if not tally.roll:
-                        return None  # an attendance roll call, not a vote
-                    pos += 1
+                        return None
                     continue
-                name = called[0] if called else (u.speaker if self.known(u.speaker) or not
-                                                  self.directory.people else None)
+                name = u.speaker if self.known(u.speaker) else (called[0] if called else None)
+                if name is None and not self.directory.people:
+                    name = u.speaker
                 if name is None:
                     tally.unclear.append(f"an answer by {u.speaker!r} with no name called")
                 else:
                     tally.roll.append((u, name, how))
                 called, tally.last = None, u
-                pos += 1
                 continue
-            if called is not None and u.speaker != caller and (UNCLEAR.search(u.text) or
-                                                                len(u.bare.split()) <= 6):
-                if UNCLEAR.search(u.text) or not re.search(r"(?i)\b(?:sorry|muted|moment|wait|"
-                                                           r"repeat|again)\b", text):
-                    tally.unclear.append(f"the answer of {called[0]} was not clear")
-                    called, tally.last = None, u
-                pos += 1
+            if called is not None and u.speaker != caller and UNCLEAR.search(u.text):
+                tally.unclear.append(f"the answer of {called[0]} was not clear")
+                called, tally.last = None, u
                 continue
             other += 1
             if other >= 3 or len(u.bare.split()) > 12:
                 break
-            pos += 1
-        if called is not None:
+        if called is not None and tally.announce is None:
             tally.unclear.append(f"no answer heard from {called[0]}")
         if not tally.roll and tally.announce is None:
             return None
@@ -1252,9 +1380,15 @@ class _Run:
             if main is None:
                 return
             new = amended_text(main.text, motion.text)
-            if new is None:
-                self.change(main.id, "amended", f"{main.text} (as amended by {motion.id}: "
-                            f"{motion.text})", unit)
+            restated = self.restatement(unit)
+            if new is None and restated is not None:
+                # the chair's "the main motion as amended, which is to..." gives the wording
+                self.change(main.id, "amended", restated[0], restated[1])
+                self.consumed_to = max(self.consumed_to, restated[1].pos + 1)
+            elif new is None:
+                change = re.sub(r"(?i)^amend\s+(?:the\s+motion\s+)?(?:by\s+|to\s+)?", "",
+                                motion.text)
+                self.change(main.id, "amended", f"{main.text}, amended: {change}", unit)
                 self.flag(main.id, f"the wording after amendment {motion.id} could not be "
                           "worked out; clerk to write it", unit)
             else:
@@ -1265,7 +1399,31 @@ class _Run:
                 return
             kind = {"postpone": "postponed", "table": "tabled", "refer": "referred"}[motion.kind]
             said = motion.evidence[0].quote if motion.evidence else motion.text
-            self.change(main.id, kind, disposal_value(motion.kind, said), unit)
+            self.change(main.id, kind, self.with_date(disposal_value(motion.kind, said)), unit)
+
+    def with_date(self, value: str | None) -> str | None:
+        """Return a postponement's "to the November 11 meeting" with its date, when known."""
+        if not value:
+            return value
+        try:
+            from ..dates import resolve_due
+        except ImportError:  # pragma: no cover - the date reader ships with the package
+            return value
+        info = self.r.ctx.transcript.meeting
+        day, _ = resolve_due(value, info.date, info.next_meeting)
+        if day is None and re.search(r"(?i)\bnext\s+(?:regular\s+)?meeting\b", value):
+            day = info.next_meeting
+        return f"{value} ({day.isoformat()})" if day else value
+
+    def restatement(self, after: Unit) -> tuple[str, Unit] | None:
+        """Return the chair's wording of the motion as amended, said just after ``after``."""
+        for pos in range(after.pos + 1, min(len(self.units), after.pos + 4)):
+            u = self.units[pos]
+            m = re.search(r"(?i)\bmotion\s+as\s+amended,?\s+(?:which\s+is|is|reads|now\s+reads|"
+                          r"which\s+reads)[:,]?\s+(?:to\s+|that\s+)?(?P<x>.+?)[.!]*$", u.clean)
+            if m:
+                return clause(m.group("x")), u
+        return None
 
 
 def _lone_number(text: str) -> int | None:
