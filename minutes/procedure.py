@@ -38,6 +38,7 @@ from .relay.motions import (
     CHAIR_ROLES,
     CLERK_ROLES,
     HYPOTHETICAL,
+    INLINE_ANSWER,
     ROLL_CALL,
     Unit,
     answer_of,
@@ -152,18 +153,31 @@ _CORRECTION = re.compile(r"\b(?:should\s+(?:say|read|be|show|reflect|have\s+been
                          r"correction|instead\s+of|rather\s+than|misspell\w*|spelled|left\s+out|"
                          r"omitted|missing|typo|was\s+(?:absent|present)|not\s+\w+\s+but|"
                          r"change\s+.+\s+to)\b", re.I)
+_WHERE = re.compile(r"(?i)\b(?:on\s+page|page\s+\w+|section\s+\w+|under\s+(?:the\s+)?"
+                    r"(?:motion|item)|item\s+\w+|paragraph)\b")
+_ONE_CORRECTION = re.compile(r"(?i)(?:yes,?\s+|so,?\s+)?(?:i\s+have\s+)?(?:a|one|just\s+one)\s+"
+                             r"correction\W*")
 _REPORT = re.compile(
-    r"\b(?:next|now|(?:we(?:'ll|\s+will)|let'?s|i'd\s+like\s+to|i\s+would\s+like\s+to)\s+(?:now\s+"
-    r")?(?:hear|have|get|move\s+(?:on\s+)?to|go\s+to|turn\s+to|take|receive|call\s+for)|moving\s+on"
-    r"\s+to|move\s+on\s+to|up\s+next|next\s+up|next\s+item|item\s+\w+\s+is|i(?:'ll|\s+will)\s+"
-    r"(?:now\s+)?(?:give|present|deliver|make)|here\s+is|here's|this\s+is|call\s+on|turn\s+(?:it\s+"
-    r")?over\s+to|may\s+we\s+have|can\s+we\s+(?:have|get)|could\s+we\s+(?:have|get))\b"
-    r"(?P<mid>(?:\s+[\w'.,-]+){0,7}?)\s+report\b(?!\s+(?:back|to|on\s+that))", re.I)
+    r"^(?:(?:okay|all\s+right|so|and|thank\s+you)[,.]?\s+)*(?:next|now|(?:we(?:'ll|\s+will)|let'?s|"
+    r"i'd\s+like\s+to|i\s+would\s+like\s+to)\s+(?:now\s+)?(?:hear|have|get|move\s+(?:on\s+)?to|go"
+    r"\s+to|turn\s+to|take|receive|call\s+for)|we\s+(?:also\s+)?have|moving\s+on\s+to|move\s+on\s+"
+    r"to|up\s+next|next\s+up|next\s+item|item\s+\w+(?:\s+[a-z])?(?:\s+is|,)|that\s+brings\s+us\s+to|"
+    r"i(?:'ll|\s+will)\s+(?:now\s+)?(?:give|present|deliver|make)|here\s+is|here's|this\s+is|"
+    r"turning\s+to|on\s+to|may\s+we\s+have|can\s+we\s+(?:have|get)|could\s+we\s+(?:have|get))(?:\b|(?<=,))"
+    r"(?P<mid>(?:\s+[\w'.,-]+){0,7}?)\s+report\b(?!\s+(?:back|to|on\s+that|is|was|has))", re.I)
+_RECEIVED = re.compile(r"(?i)\bthe\s+(?P<title>[\w' -]{2,60}?)\s+report\s+(?:is|was|has\s+been|"
+                       r"will\s+be)\s+(?:received|accepted|filed)\b")
+_NOT_GIVEN = re.compile(r"(?i)\b(?:not\s+here|isn't\s+here|absent|carry\s+(?:it|that)\s+over|"
+                        r"postpone|defer|skip|not\s+taken\s+up|no\s+report|next\s+month)\b")
+_COMMITTEE = re.compile(r"\b((?:[A-Z][\w'-]*\s+){1,4}(?:Committee|Commission|Subcommittee|Task\s+"
+                        r"Force|Council|Board))\b")
+_GENERIC = {"committee", "short committee", "brief committee", "staff", "short", "brief", ""}
 _TITLE_STOP = {"the", "our", "a", "an", "to", "is", "hear", "have", "get", "give", "present",
                "with", "for", "next", "now", "take", "receive", "of", "on", "item", "move",
                "go", "turn", "up", "we'll", "will", "let's", "i'll", "deliver", "make", "call",
                "it", "over", "here", "this", "here's", "may", "can", "could", "we", "moving",
-               "and", "then", "that", "brings", "us", "at", "from", "first", "second"}
+               "and", "then", "that", "brings", "us", "at", "from", "first", "second", "also",
+               "turning", "short", "brief", "quick", "written", "monthly"}
 _GIVER = re.compile(r"\breport\b[^.?!]*?\b(?:from|by|with|given\s+by)\s+(?P<who>[\w'.-]+(?:\s+"
                     r"[\w'.-]+){0,3})", re.I)
 _PUBLIC_OPEN = re.compile(r"\b(?:open|opening|opened|move\s+(?:on\s+)?to|now\s+to|turn\s+to|time"
@@ -171,10 +185,13 @@ _PUBLIC_OPEN = re.compile(r"\b(?:open|opening|opened|move\s+(?:on\s+)?to|now\s+t
                           r"we'll\s+have|take)\b[^.?!]*\bpublic\s+comments?\b|\bpublic\s+comments?"
                           r"\s+(?:period|section|portion|time)?\s*(?:is\s+)?(?:now\s+)?open\b",
                           re.I)
+_PUBLIC_NEXT = re.compile(r"(?i)\b(?:brings\s+us\s+to|on\s+to|now\s+for)\s+public\s+comments?")
 _PUBLIC_CLOSE = re.compile(r"\b(?:close|closing|closed|concludes?|ends?|end\s+of)\b[^.?!]*\bpublic"
                            r"\s+comments?\b|\bpublic\s+comments?\s+(?:is\s+)?(?:now\s+)?closed\b",
                            re.I)
-_MY_NAME = re.compile(r"\b(?:my\s+name\s+is|my\s+name's|name\s+is)\s+(?P<name>[^,.;!?]+)", re.I)
+_MY_NAME = re.compile(r"(?i:\b(?:my\s+name\s+is|my\s+name's|name\s+is)\s+)(?P<name>[^,.;!?]+)"
+                      r"|^(?i:(?:hi|hello|yes|okay|good\s+evening),?\s+)?(?i:this\s+is|i'm|i\s+am)\s+"
+                      r"(?P<name2>[A-Z][\w'-]+(?:\s+[A-Z][\w'-]+){1,2})\b")
 _NAME_STOP = re.compile(r"\s+(?:and|i|i'm|from|with|of|at|here|speaking|on|representing|"
                         r"who|the|live|resident|a|an)\b.*$", re.I)
 
@@ -213,7 +230,8 @@ class ProcedureReader:
         for u in self.units:
             if _PUBLIC_CLOSE.search(u.clean):
                 open_ = False
-            elif _PUBLIC_OPEN.search(u.clean) and not u.clean.rstrip().endswith("?"):
+            elif (_PUBLIC_OPEN.search(u.clean) or _PUBLIC_NEXT.search(u.clean)) \
+                    and not u.clean.rstrip().endswith("?"):
                 open_, since = True, 0
             elif open_:
                 since += 1
@@ -288,22 +306,44 @@ class ProcedureReader:
         if (m := _MINUTES_APPROVED.search(text)) and not HYPOTHETICAL.search(text[: m.start()]):
             how = (m.group("how") or "").lower()
             return [self._event("minutes_approved", u, self._approval_detail(pos, how))], pos + 1
-        if (m := _REPORT.search(text)) and not text.rstrip().endswith("?") or (
-                m and text.rstrip().endswith("?") and self.is_chair(u)):
+        m = _REPORT.search(text)
+        if (m and (self.is_chair(u) or not text.rstrip().endswith("?"))) or (
+                _RECEIVED.search(text) and self.is_chair(u)):
             event = self._report(ledger, u, m)
             if event is not None:
                 return [event], pos + 1
-        if m := _MY_NAME.search(text):
-            person = self.directory.resolve(u.speaker)
-            if self.public[pos] or (person is not None and person.role == "public") or (
-                    person is None and self.directory.people):
-                name = _NAME_STOP.sub("", m.group("name")).strip(" '\"")
-                words = name.split()[:4]
-                if words:
-                    return [self._event("public_comment", u, _title_case(words))], pos + 1
+        name = self._stated_name(u)
+        if name and not any(e.kind == "public_comment" and e.detail == name
+                            for e in ledger.events):
+            return [self._event("public_comment", u, name)], pos + 1
         return [], pos + 1
 
     # ------------------------------------------------------------------ the pieces
+
+    def _stated_name(self, u: Unit) -> str | None:
+        """Return the name a member of the public gives ("My name is Dana Ruiz"), or None."""
+        person = self.directory.resolve(u.speaker)
+        public = person is not None and person.role == "public"
+        if not (public or (person is None and (self.public[u.pos] or self.directory.people))):
+            return None
+        m = _MY_NAME.search(u.clean)
+        if m and (m.group("name") or self.public[u.pos] or public):
+            raw = m.group("name") or m.group("name2")
+            words = _NAME_STOP.sub("", raw).strip(" '\"").split()[:4]
+            return " ".join(words) or None
+        if not self.public[u.pos]:
+            return None
+        # "Good evening. Caleb Osterhout, Vinegar Hill Road.": a name opening a sentence
+        doc = self.ctx.parsed.docs[u.utt.index] if u.utt.index < len(self.ctx.parsed) else None
+        offset = u.utt.text.find(u.text)
+        first = self.first.get(u.utt.index, -1)
+        if doc is None or offset < 0 or u.pos - first > 2:
+            return None
+        for ent in doc.ents:
+            if ent.label_ == "PERSON" and ent.start_char == offset and \
+                    doc.text[ent.end_char: ent.end_char + 1] in (",", "."):
+                return str(ent.text)
+        return None
 
     def _roll_call(self, pos: int) -> tuple[Event | None, int]:
         """Read an attendance roll call; return its event (None when it is a vote) and end."""
@@ -318,32 +358,37 @@ class ProcedureReader:
         p = pos + 1
         while p < limit:
             u = self.units[p]
-            inline = re.match(r"(?i)^(?P<who>[\w'. -]+?)[,:]?\s+(?:is\s+)?(?P<how>present|here|"
-                              r"absent)[.!]*$", u.clean)
+            p += 1
+            inline = INLINE_ANSWER.match(u.clean)
             if inline and (name := resolve_name(self.directory, inline.group("who"))):
-                if inline.group("how").lower() != "absent":
+                how = inline.group("how").lower()
+                if how in ("aye", "yes", "yea", "no", "nay", "abstain", "abstains"):
+                    return None, pos + 1  # a vote by roll call: the motion reader's business
+                if how != "absent":
                     present.append(name)
-                caller, called, last = u.speaker, None, p
-                p += 1
+                caller, called, last = u.speaker, None, p - 1
                 continue
             how = answer_of(u)
             words = u.clean.strip(" ?.!,").split()
             callee = resolve_name(self.directory, " ".join(words)) if 0 < len(words) <= 4 \
                 else None
-            if callee and how is None and (caller is None or u.speaker == caller):
-                caller, called, last = u.speaker, callee, p
-            elif how is not None and u.speaker != caller:
-                if how != "present":
+            if callee and how is None:
+                caller, called, last = u.speaker, callee, p - 1
+                continue
+            if how is not None and u.speaker != caller:
+                if called is None and not present:
+                    continue  # "Yes." from the clerk before the first name is called
+                if how not in ("present", "absent"):
                     return None, pos + 1  # a vote by roll call: the motion reader's business
-                who = called or (u.speaker if self.directory.resolve(u.speaker) else None)
-                if who:
+                known = self.directory.resolve(u.speaker)
+                who = known.name if known else called
+                if who and how == "present":
                     present.append(who)
-                called, last = None, p
-            else:
-                other += 1
-                if other >= 3 or len(u.bare.split()) > 12:
-                    break
-            p += 1
+                called, last = None, p - 1
+                continue
+            other += 1
+            if other >= 3 or len(u.bare.split()) > 14:
+                break
         if not present:
             return None, pos + 1
         end = self.units[last]
@@ -359,22 +404,29 @@ class ProcedureReader:
         return how or "as read"
 
     def _correction(self, pos: int) -> str:
-        """Return the correction members offered since the chair asked for corrections."""
-        found: list[str] = []
+        """Return the correction a member offered since the chair asked for corrections.
+
+        The first member's correction, from the sentence that says where ("On page two...")
+        to the one that says what it should be, as spoken; repeats of it are left out.
+        """
+        first: Unit | None = None
         for p in range(pos - 1, max(-1, pos - 40), -1):
             u = self.units[p]
             if self.is_chair(u) and _CORRECTIONS_ASKED.search(u.clean) and (
-                    found or re.search(r"(?i)\bminutes\b", u.clean)):
+                    first is not None or re.search(r"(?i)\bminutes\b", u.clean)):
                 break  # back at the chair's question ("any other corrections?" may come later)
             if self.is_chair(u) or len(u.bare.split()) < 4 or u.clean.rstrip().endswith("?"):
                 continue
-            if _CORRECTION.search(u.clean):
-                text = re.sub(r"(?i)^(?:yes|yeah|okay|so|i\s+have)[, ]+", "", u.clean)
-                if re.fullmatch(r"(?i)(?:i\s+have\s+)?(?:a|one|just\s+one)\s+correction\W*",
-                                text):
-                    continue
-                found.append(text.rstrip(" ."))
-        return "; ".join(reversed(found))
+            if _CORRECTION.search(u.clean) and not _ONE_CORRECTION.fullmatch(u.clean):
+                first = u
+        if first is None:
+            return ""
+        same = [x for x in self.units[max(0, first.pos - 4): first.pos + 1]
+                if x.utt.index == first.utt.index]
+        start = next((i for i, x in enumerate(same) if _WHERE.search(x.clean)), len(same) - 1)
+        picked = [x.clean for x in same[start:] if not _ONE_CORRECTION.fullmatch(x.clean)]
+        text = " ".join(picked)
+        return re.sub(r"(?i)^(?:yes|yeah|okay|so)[, ]+", "", text).rstrip(" .")
 
     def _minutes_from_motions(self, ledger: Ledger, segment: Segment, start: int,
                               stop: int) -> list[Op]:
@@ -410,8 +462,13 @@ class ProcedureReader:
                                  clock_at(self.ctx.transcript, ev.start))))
         return ops
 
-    def _report(self, ledger: Ledger, u: Unit, m: re.Match[str]) -> Event | None:
-        words = (m.group("mid") or "").split()
+    def _report(self, ledger: Ledger, u: Unit, m: re.Match[str] | None) -> Event | None:
+        """Return a report event for an introduction ("Item three, the treasurer's report")."""
+        rest = [x for x in self.units[u.pos + 1: u.pos + 4] if x.utt.index == u.utt.index]
+        if _NOT_GIVEN.search(" ".join([u.clean] + [x.clean for x in rest])):
+            return None  # "Imani usually gives that, and she's not here, so we'll carry it over"
+        received = _RECEIVED.search(u.clean)
+        words = (m.group("mid") if m else received.group("title") if received else "").split()
         title: list[str] = []
         for w in reversed(words):
             if w.lower().strip(",") in _TITLE_STOP:
@@ -422,6 +479,11 @@ class ProcedureReader:
             title = title[1:]
             if not title and person and person.role:
                 title = [f"{person.role}'s"]
+        label = " ".join(title).strip()
+        if label.lower() in _GENERIC:
+            named = next((c.group(1) for x in [u, *rest] if (c := _COMMITTEE.search(x.clean))),
+                         None)
+            label = named or label
         name = None
         if g := _GIVER.search(u.clean):
             name = name_in(self.directory, g.group("who"))
@@ -429,17 +491,30 @@ class ProcedureReader:
                                       r"deliver|make)|\bhere\s+is\s+my|\bhere's\s+my|\bmy\s+"
                                       r"report\b", u.clean):
             name = u.speaker
-        if name is None:
+        for x in rest:  # "... the treasurer's report. Tom?" / "Desmond, the committee met...?"
+            lead = re.match(r"^([\w'.-]+(?:\s+[\w'.-]+)?)(?:[,?]|\s*$)", x.clean)
+            if name is None and lead:
+                name = name_in(self.directory, lead.group(1))
+        if name is None and not received:
             name = self._next_speaker(u)
-        label = " ".join(title).strip()
         if not label and name is None:
             return None
         label = (label[:1].upper() + label[1:] + " report") if label else "Report"
-        for e in ledger.events[-6:]:
+        for e in ledger.events[-8:]:
             if e.kind == "report" and e.detail.split(",")[0].lower() == label.lower():
                 return None
+        if received and name is None:
+            name = self._main_speaker(u)
         detail = f"{label}, by {name}" if name else label
         return self._event("report", u, detail)
+
+    def _main_speaker(self, u: Unit) -> str | None:
+        """Return who spoke most in the 40 sentences before a report was received."""
+        words: dict[str, int] = {}
+        for x in self.units[max(0, u.pos - 40): u.pos]:
+            if x.speaker != u.speaker:
+                words[x.speaker] = words.get(x.speaker, 0) + len(x.bare.split())
+        return max(words, key=lambda k: words[k]) if words else None
 
     def _next_speaker(self, u: Unit) -> str | None:
         """Return who speaks at length next, not the one introducing the report."""
