@@ -1,0 +1,143 @@
+"""Open questions: put to the group and not answered in the turns that follow.
+
+A question answered at once is not minuted. One that nobody answers, or that
+gets "I don't know", is carried as open; a later turn that answers it (the same
+content, said as a statement by someone else) closes it, in this segment or a
+later one.
+"""
+
+from __future__ import annotations
+
+import re
+
+from ..model import Change, Question
+from .clauses import Sentence, capitalise, clean_phrase, content_stems, evidence, overlap
+from .ledger import Add, Update
+from .state import State, Turn
+
+TAG = re.compile(
+    r"(?:^|\s)(?:right|is n't it|is it|are n't they|do n't you think|you know|okay|ok|yeah|no|eh|"
+    r"huh|yes|aye|innit|do n't we|wo n't it|does n't it|ca n't we|is n't that|alright|all right|"
+    r"sorry|pardon|really|what)\s*\?\s*$"
+)
+NOT_TO_GROUP = re.compile(
+    r"^(?:(?:um|uh|so|and|but|oh|okay|well) )*(?:sorry|pardon|what \?|how are you|can you (?:see|hear)|"
+    r"is that (?:right|okay|ok|it)|are you (?:okay|ok|there|done|ready|with me)|did you (?:say|mean)|"
+    r"do you mean|you mean|what do you mean|what was that|who 's next|shall i (?:start|go|continue)|"
+    r"can i (?:just )?(?:ask|say|interrupt|start)|may i|where was i|where were we|is it on|"
+    r"what time|any (?:questions|comments|thoughts)|(?:yeah|no|right|what) \?)"
+)
+WONDER = re.compile(r"(?:^|\s)(?:i wonder (?:if|whether|what|how|why|who)|does anyone know|"
+                    r"do we know|we need to (?:find out|figure out|work out) (?:whether|if|what|how|who))\b")
+NON_ANSWER = re.compile(
+    r"^(?:(?:um|uh|well|hmm|mm|oh) ,? )*(?:i do n't know|dunno|no idea|not sure|i 'm not sure|"
+    r"good question|who knows|i have no idea|we 'll (?:have to )?(?:see|check|find out)|"
+    r"i 'll (?:have to )?(?:check|find out)|i ca n't remember|i forget|that 's a good question|"
+    r"i was (?:going to|gon na) ask|i wondered that too|i 'm wondering)"
+)
+LATER_CUE = re.compile(r"\b(?:to answer|about (?:the|your|that) question|the answer is|"
+                       r"turns out|i checked|i found out|we found out|regarding|as for|i looked)\b")
+IMMEDIATE_TURNS = 3
+IMMEDIATE_SECONDS = 30.0
+
+
+def is_group_question(sentence: Sentence) -> bool:
+    """Return True for a question put to the group (not a tag, a check or a request)."""
+    toks = sentence.toks
+    if WONDER.search(toks):
+        return True
+    if not sentence.is_question:
+        return False
+    words = [w for w in toks.split() if w not in ("?", ",", ".")]
+    if len(words) < 4 or TAG.search(toks) or NOT_TO_GROUP.search(toks):
+        return False
+    return len(content_stems(toks)) >= 2
+
+
+ANSWER_START = re.compile(
+    r"^(?:(?:um|uh|well|oh|so|mm) ,? )*(?:yes|no|yeah|yep|nope|sure|definitely|probably|maybe|"
+    r"i think|i believe|it 's|it is|they 're|they are|about|around|roughly|because|we (?:have|'ve|"
+    r"can|could|should)|that 's|there 's|there are|you can|you could|i would|i 'd|not)\b"
+)
+ANSWER_ENTS = frozenset({"MONEY", "CARDINAL", "DATE", "TIME", "PERCENT", "QUANTITY", "PERSON",
+                         "ORG", "GPE"})
+
+
+def _answer_kind(turn: Turn, question: frozenset[str]) -> str:
+    """Return "answer", "non-answer" or "" (not a reply) for a turn after a question."""
+    if not turn.sentences:
+        return ""
+    first = turn.sentences[0]
+    if NON_ANSWER.search(first.toks):
+        return "non-answer"
+    if first.is_question and len(turn.sentences) == 1:
+        return ""  # a question back is not an answer
+    said = content_stems(" ".join(s.toks for s in turn.sentences[:2]))
+    if said & question or ANSWER_START.search(first.toks):
+        return "answer"
+    if any(ent.label_ in ANSWER_ENTS for ent in first.span.ents):
+        return "answer"
+    return ""
+
+
+def read(state: State, k: int) -> None:
+    """Read questions asked and answered in turn ``k`` into the state."""
+    turn = state.turns[k]
+    now = turn.utterance.start
+    # answers to open questions carried in the ledger or asked earlier in this segment
+    for question in state.ledger.open_questions:
+        if turn.speaker == question.asked_by:
+            continue
+        asked_at = question.evidence[0].utterance
+        if turn.utterance.index <= asked_at:
+            continue
+        immediate = (turn.utterance.index - asked_at <= IMMEDIATE_TURNS
+                     and now - question.evidence[0].end <= IMMEDIATE_SECONDS
+                     and not _asked_since(state, asked_at, k))
+        q_words = content_stems(question.text)
+        kind = _answer_kind(turn, q_words)
+        for sentence in turn.sentences:
+            if sentence.is_question:
+                continue
+            shared = overlap(q_words, content_stems(sentence.toks))
+            late = shared >= 0.5 and len(q_words & content_stems(sentence.toks)) >= 2 and (
+                LATER_CUE.search(sentence.toks) or shared >= 0.75)
+            if (immediate and kind == "answer" and question.history[-1].kind != "reopened"
+                    and _asked_in_segment(state, asked_at)) or late:
+                ev = evidence(turn.utterance, sentence.text)
+                state.apply([Update(question.id, Change("answered", None, ev))])
+                break
+    # new questions: kept only when the next turns do not answer them
+    for sentence in turn.sentences:
+        if state.is_claimed(sentence) or not is_group_question(sentence):
+            continue
+        replies = [t for t in state.following(k, limit=IMMEDIATE_TURNS, seconds=IMMEDIATE_SECONDS)
+                   if t.speaker != turn.speaker]
+        if sentence.number < len(turn.sentences) - 1 and not replies:
+            continue  # the speaker goes on: a rhetorical question, or one they answer themselves
+        q_words = content_stems(sentence.toks)
+        first = ""
+        for reply in replies:
+            first = _answer_kind(reply, q_words)
+            if first or any(s.is_question for s in reply.sentences):
+                break  # answered, or a new question takes the floor
+        if first == "answer":
+            continue
+        text = capitalise(clean_phrase(list(sentence.span), lemmatise_first=False, max_words=30))
+        if not text:
+            continue
+        text = text.rstrip("?. ") + "?"
+        ev = evidence(turn.utterance, sentence.text)
+        state.apply([Add(Question("", text, turn.speaker, False, ev.start, (ev,)))])
+        state.claim(sentence)
+
+
+def _asked_since(state: State, asked_at: int, k: int) -> bool:
+    """Return True when another question was asked between ``asked_at`` and turn ``k``."""
+    return any(s.is_question for t in state.turns[:k] if t.utterance.index > asked_at
+               for s in t.sentences)
+
+
+def _asked_in_segment(state: State, asked_at: int) -> bool:
+    """Return True when the question was asked in this segment or just before its start."""
+    return asked_at >= state.segment.first - IMMEDIATE_TURNS
