@@ -611,7 +611,8 @@ def disposal_value(kind: str, text: str) -> str | None:
     """Return the date, meeting or committee a motion to postpone/table/refer names."""
     low = clean(text)
     if kind == "refer":
-        m = re.search(r"\b(?:back\s+)?to\s+(?P<to>(?:the\s+|our\s+)?[\w' -]*?(?:committee|"
+        m = re.search(r"\b(?:back\s+)?to\s+(?P<to>(?:the\s+|our\s+)?(?:(?!to\b)[\w'-]+\s+){0,5}?"
+                      r"(?:committee|"
                       r"commission|subcommittee|staff|task\s+force|working\s+group|board|panel|"
                       r"council)\b.*)$", low, re.I)
         return f"to {_trim(m.group('to'))}" if m else None
@@ -1290,7 +1291,7 @@ class _Run:
                     "tabled" if verb.startswith("table") else "postponed")
             value = disposal_value({"referred": "refer", "tabled": "table"}.get(kind, "postpone"),
                                    whole[disposal.start():])
-            self.change(floor.id, kind, value, self.units[end - 1])
+            self.change(floor.id, kind, self.with_date(value), self.units[end - 1])
             return end
         tally = _Tally("consent", u, self.units[end - 1], announced="carried",
                        announce=self.units[end - 1])
