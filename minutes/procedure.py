@@ -263,8 +263,9 @@ class ProcedureReader:
 
     # ------------------------------------------------------------------ one sentence
 
-    def _event(self, kind: str, u: Unit, detail: str = "", clock: dt.time | None = None) -> Event:
-        ev = u.evidence()
+    def _event(self, kind: str, u: Unit, detail: str = "", clock: dt.time | None = None,
+               focus: str = "") -> Event:
+        ev = u.evidence(focus)
         return Event(kind, ev.start, (ev,), detail,
                      clock or clock_at(self.ctx.transcript, ev.start))
 
@@ -289,13 +290,15 @@ class ProcedureReader:
                 > max(i for i, k in enumerate(kinds) if k == "call_to_order"))
             if "call_to_order" not in kinds or back or after_recess:
                 detail = "reconvened" if "call_to_order" in kinds else ""
-                return [self._event("call_to_order", u, detail, self._clock(u))], pos + 1
+                return [self._event("call_to_order", u, detail, self._clock(u),
+                                    _focus(u, r"to\s+order"))], pos + 1
         if _RECONVENE.search(text) and "recess" in kinds and kinds[-1] == "recess":
             return [self._event("call_to_order", u, "reconvened", self._clock(u))], pos + 1
         if ((m := _ADJOURN.search(text)) and "adjournment" not in kinds
                 and not HYPOTHETICAL.search(text[: m.start()])
                 and not re.search(r"(?i)\bmotion\s+to\s+adjourn\b", text[: m.start()])):
-            return [self._event("adjournment", u, "", self._clock(u))], pos + 1
+            return [self._event("adjournment", u, "", self._clock(u),
+                                _focus(u, r"adjourn\w*"))], pos + 1
         if (m := _RECESS.search(text)) and (m.group("what") != "break" or self.is_chair(u)) \
                 and not text.rstrip().endswith("?"):
             return [self._event("recess", u, _recess_detail(m), self._clock(u))], pos + 1
@@ -527,6 +530,12 @@ class ProcedureReader:
             seen += 1
             p += 1
         return None
+
+
+def _focus(u: Unit, words: str) -> str:
+    """Return the words from ``words`` to the clock time after it, as said in ``u``."""
+    m = re.search(rf"(?i){words}(?:\s+\S+){{0,3}}", u.text)
+    return m.group(0) if m else ""
 
 
 def _recess_detail(m: re.Match[str]) -> str:

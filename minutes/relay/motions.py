@@ -130,9 +130,13 @@ class Unit:
         """Return the (resolved) speaker of the utterance."""
         return self.utt.speaker
 
-    def evidence(self) -> Evidence:
-        """Return the evidence for this sentence: its utterance, cue, time and words."""
-        cue = self.utt.cue_for(self.text)
+    def evidence(self, focus: str = "") -> Evidence:
+        """Return the evidence for this sentence: its utterance, cue, time and words.
+
+        ``focus`` names the words that matter when the sentence spans cues ("to order at
+        6:32"): the cue is the one holding them.
+        """
+        cue = self.utt.cue_for(focus or self.text)
         start, end = (cue.start, cue.end) if cue else (self.utt.start, self.utt.end)
         return Evidence(self.utt.index, cue.id if cue else None, start, end, self.utt.speaker,
                         self.text)
