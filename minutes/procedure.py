@@ -171,6 +171,8 @@ _NOT_GIVEN = re.compile(r"(?i)\b(?:not\s+here|isn't\s+here|absent|carry\s+(?:it|
                         r"postpone|defer|skip|not\s+taken\s+up|no\s+report|next\s+month)\b")
 _COMMITTEE = re.compile(r"\b((?:[A-Z][\w'-]*\s+){1,4}(?:Committee|Commission|Subcommittee|Task\s+"
                         r"Force|Council|Board))\b")
+_PREPOSITIONS = {"in", "on", "about", "from", "through", "into", "for", "with", "of", "at", "by",
+                 "under", "per"}
 _GENERIC = {"committee", "short committee", "brief committee", "staff", "short", "brief", ""}
 _TITLE_STOP = {"the", "our", "a", "an", "to", "is", "hear", "have", "get", "give", "present",
                "with", "for", "next", "now", "take", "receive", "of", "on", "item", "move",
@@ -472,6 +474,10 @@ class ProcedureReader:
             return None  # "Imani usually gives that, and she's not here, so we'll carry it over"
         received = _RECEIVED.search(u.clean)
         words = (m.group("mid") if m else received.group("title") if received else "").split()
+        low = [w.lower().strip(",") for w in words]
+        dets = [i for i, w in enumerate(low) if w in ("the", "my", "our", "a", "an", "this")]
+        if dets and dets[-1] > 0 and low[dets[-1] - 1] in _PREPOSITIONS:
+            return None  # "... comes through in the report": a mention, not an introduction
         title: list[str] = []
         for w in reversed(words):
             if w.lower().strip(",") in _TITLE_STOP:

@@ -1263,14 +1263,12 @@ class _Run:
         """Read "without objection... so ordered"; return the position after it (None: not)."""
         u = self.units[pos]
         text = u.clean
-        granted: Unit | None = u if (_GRANTED.search(text) or (
-            re.search(r"(?i)\bwithout\s+objection\b", text) and (_announced(u)[0]
-                                                               or _PASSIVE.search(text)
-                                                               or _DISPOSE.search(text)
-                                                               or re.search(r"(?i)\bwe(?:'ll|\s+"
-                                                                            r"will)\b", text)))
-        ) else None
-        last = u
+        # "Without objection, the agenda is approved" grants consent in the same breath
+        at_once = bool(_GRANTED.search(text)) or bool(
+            re.search(r"(?i)\bwithout\s+objection\b", text)
+            and (_announced(u)[0] or _PASSIVE.search(text) or _DISPOSE.search(text)
+                 or re.search(r"(?i)\bwe(?:'ll|\s+will)\b", text)))
+        granted: Unit | None = u if at_once else None
         p = pos + 1
         while granted is None and p < min(len(self.units), pos + 8):
             v = self.units[p]
@@ -1278,7 +1276,6 @@ class _Run:
                 return p + 1  # consent refused: a vote will follow
             if _GRANTED.search(v.clean) or (v.speaker == u.speaker and _announced(v)[0]):
                 granted = v
-            last = v
             p += 1
         if granted is None:
             return None
@@ -1316,7 +1313,6 @@ class _Run:
             mid = self.emit(Add(motion))
             self.flag(mid, "adopted by general consent on the chair's proposal; no motion was "
                       "made", u)
-        del last
         self.conclude(tally)
         return end
 
@@ -1326,7 +1322,14 @@ class _Run:
         if target is None:
             return
         call = tally.call
-        roll = tuple((name, how) for _, name, how in tally.roll)
+        latest: dict[str, str] = {}
+        for _, name, how in tally.roll:
+            if name in latest and latest[name] != how:
+                self.flag(target.id, f"{name} answered twice ({latest[name]}, then {how}); the "
+                          "later answer is recorded", tally.last)
+            latest.pop(name, None)
+            latest[name] = how  # a member may change a vote before the result is announced
+        roll = tuple(latest.items())
         yes, no, abst = tally.for_, tally.against, tally.abstain
         if tally.method == "roll_call" and roll:
             computed = (sum(h == "aye" for _, h in roll), sum(h == "no" for _, h in roll),
@@ -1344,10 +1347,11 @@ class _Run:
                                                              "none")
         vote = Vote(method, yes, no, abst, roll)
         if method != "none":
-            for answer, name, how in tally.roll:
+            for i, (answer, name, how) in enumerate(tally.roll):
+                # each answer is the evidence of that member's vote; the roll so far goes with it
+                so_far = tuple((n, h) for _, n, h in tally.roll[: i + 1])
                 self.change(target.id, "vote", f"{name}: {how}", answer,
-                            replace(vote, roll_call=roll[: tally.roll.index((answer, name, how))
-                                                           + 1]))
+                            replace(vote, roll_call=so_far))
             value = {"voice": "voice", "consent": "general consent",
                      "roll_call": "roll call"}.get(method, "counted")
             if yes is not None or no is not None:
