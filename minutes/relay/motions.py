@@ -9,8 +9,13 @@ Interface (what the pipeline calls)::
                                    a motion never voted on stays "pending"
     tally_outcome(vote, motion, roster) -> (outcome or None, the rule in words)
 
-Also used by ``minutes.procedure``: ``units``, ``Unit``, ``resolve_name``, ``answer_of``,
-``clean``.
+Helpers (also used by ``minutes.procedure``): ``units(transcript)`` -> sentence ``Unit``s
+with their evidence, ``resolve_name(directory, "Director Ramirez")``, ``answer_of(unit)``
+("aye"/"no"/"abstain"/"present"), ``counts_in(text)`` -> (for, against, abstain),
+``figures(text)`` (spoken sums, dates and hours as figures), ``clean(text)`` (fillers out).
+
+Run it as ``Combined((RulesReader(ctx), MotionReader(ctx), ProcedureReader(ctx)))``; changes
+carry ``source="rules"``.
 
 What it reads, sentence by sentence, in order:
 
