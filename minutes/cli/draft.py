@@ -1,113 +1,18 @@
-"""The ``minutes`` command: a thin click layer over ``minutes.pipeline`` and friends.
-
-It parses options, calls one library function, writes the result, and turns
-library errors into messages: bad usage exits 2, failed work exits 1, and no
-traceback reaches the user (set MINUTES_DEBUG=1 to see one).
-"""
+"""``minutes draft``: captions, transcript or recording in; draft minutes out."""
 
 from __future__ import annotations
 
 import datetime as dt
-import functools
-import os
 import sys
-import time
-from collections.abc import Callable
 from pathlib import Path
-from typing import Any, TypeVar
 
 import click
 
-from .errors import MinutesError, UsageError
-
-F = TypeVar("F", bound=Callable[..., Any])
+from . import Progress, date_option, guard, main
+from .transcribe import asr_options, make_asr_options
 
 FORMATS = ("md", "docx", "json")
 SUFFIX_FORMAT = {".md": "md", ".markdown": "md", ".docx": "docx", ".json": "json"}
-
-
-def _guard(func: F) -> F:
-    """Turn library errors into click errors, and anything unexpected into a short message."""
-
-    @functools.wraps(func)
-    def wrapper(*args: Any, **kwargs: Any) -> Any:
-        try:
-            return func(*args, **kwargs)
-        except UsageError as exc:
-            raise click.UsageError(str(exc)) from exc
-        except MinutesError as exc:
-            raise click.ClickException(str(exc)) from exc
-        except (click.ClickException, click.exceptions.Exit, click.Abort):
-            raise
-        except KeyboardInterrupt:
-            raise click.Abort() from None
-        except Exception as exc:  # a bug: say so plainly, without a traceback
-            if os.environ.get("MINUTES_DEBUG"):
-                raise
-            raise click.ClickException(
-                f"internal error ({type(exc).__name__}: {exc}). This is a bug in minutes; "
-                "rerun with MINUTES_DEBUG=1 to see the traceback and please report it."
-            ) from exc
-
-    return wrapper  # type: ignore[return-value]
-
-
-class Progress:
-    """A one-line progress display on stderr: stage, counts, speed and time left."""
-
-    def __init__(self, quiet: bool) -> None:
-        self.quiet = quiet or not sys.stderr.isatty() and not os.environ.get("MINUTES_PROGRESS")
-        self.started: dict[str, float] = {}
-        self.last = 0.0
-
-    def __call__(self, stage: str, done: int, total: int) -> None:
-        if self.quiet:
-            return
-        now = time.monotonic()
-        start = self.started.setdefault(stage, now)
-        if done < total and now - self.last < 0.2:
-            return
-        self.last = now
-        elapsed = now - start
-        if stage == "transcribe" and total:
-            speed = done / elapsed if elapsed > 0 else 0.0
-            left = (total - done) / speed if speed > 0 else 0.0
-            line = (f"transcribing {done / 60:5.1f} of {total / 60:.1f} min audio"
-                    f"  {speed:4.1f}x real time  {_hms(left)} left")
-        elif total:
-            width = 24
-            filled = int(width * done / total)
-            line = f"{stage:<10} [{'#' * filled}{'.' * (width - filled)}] {done}/{total}"
-        else:
-            line = stage
-        end = "\n" if done >= total else ""
-        click.echo(f"\r{line:<78}", err=True, nl=False)
-        if end:
-            click.echo("", err=True)
-
-
-def _hms(seconds: float) -> str:
-    seconds = int(round(seconds))
-    return f"{seconds // 3600:d}:{seconds // 60 % 60:02d}:{seconds % 60:02d}"
-
-
-def _date(ctx: click.Context, param: click.Parameter, value: str | None) -> dt.date | None:
-    if value is None:
-        return None
-    try:
-        return dt.date.fromisoformat(value)
-    except ValueError:
-        raise click.BadParameter(f"{value!r} is not a date like 2026-10-14") from None
-
-
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
-@click.version_option(package_name="minutes")
-def main() -> None:
-    """Draft meeting minutes from captions or recordings, offline.
-
-    Every draft must be checked by the person responsible for the minutes
-    before it is shared. Nothing is sent off this machine.
-    """
 
 
 @main.command()
@@ -121,7 +26,7 @@ def main() -> None:
               help="Speaker profile file or folder (TOML). Default: as the meeting file says.")
 @click.option("--meeting", type=click.Path(path_type=Path),
               help="Meeting file (TOML). Default: NAME.meeting.toml beside the input.")
-@click.option("--date", callback=_date,
+@click.option("--date", callback=date_option,
               help="Meeting date, YYYY-MM-DD (overrides the meeting file).")
 @click.option("--title", help="Meeting title (overrides the meeting file).")
 @click.option("--template", type=click.Choice(["general", "board"]),
@@ -137,34 +42,45 @@ def main() -> None:
               show_default=True, help="Context size of the language model, in tokens.")
 @click.option("--max-words", type=click.IntRange(200, 50_000), default=None,
               help="Word budget of one segment (what one relay step reads).")
+@asr_options
 @click.option("--force", is_flag=True, help="Replace output files that already exist.")
 @click.option("-q", "--quiet", is_flag=True, help="No progress on standard error.")
-@_guard
+@guard
 def draft(input: Path, outputs: tuple[Path, ...], fmt: str | None, profiles: Path | None,
           meeting: Path | None, date: dt.date | None, title: str | None, template: str | None,
           encoding: str | None, engine: str, model: Path | None, threads: int,
-          context_tokens: int, max_words: int | None, force: bool, quiet: bool) -> None:
+          context_tokens: int, max_words: int | None, asr_model: Path | None, beam_size: int,
+          language: str, no_vad: bool, asr_threads: int, force: bool, quiet: bool) -> None:
     """Write draft minutes of the meeting in INPUT (captions, transcript or recording)."""
     from dataclasses import replace
 
-    from .output import check_target, write_atomic
-    from .pipeline import DraftOptions
-    from .pipeline import draft as make_draft
-    from .render import render
-    from .segment import SegmentOptions
+    from ..output import check_target, write_atomic
+    from ..pipeline import DraftOptions
+    from ..pipeline import draft as make_draft
+    from ..render import render
+    from ..segment import SegmentOptions
 
     targets = [(path, fmt or _format_of(path)) for path in outputs]
     if not targets and fmt in ("docx",):
         raise click.UsageError("DOCX cannot go to standard output; give -o FILE.docx")
     for path, _ in targets:  # fail before the work, not after it
         check_target(path, force=force, inputs=[input])
+    from ..asr.audio import is_recording
+
+    transcript_out = None
+    if is_recording(input):  # the transcript we make is written beside the minutes
+        base = targets[0][0] if targets else input
+        transcript_out = base.with_name(base.stem + ".transcript.vtt")
+        check_target(transcript_out, force=force, inputs=[input])
     segmentation = SegmentOptions()
     if max_words is not None:
         segmentation = replace(segmentation, max_words=max_words)
     options = DraftOptions(profiles=profiles, meeting=meeting, date=date, title=title,
                            template=template, encoding=encoding, engine=engine,
                            segmentation=segmentation, model=model, threads=threads,
-                           context=context_tokens)
+                           context=context_tokens,
+                           asr=make_asr_options(asr_model, beam_size, language, no_vad,
+                                                asr_threads))
     progress = Progress(quiet)
 
     def report(line: str) -> None:
@@ -172,6 +88,14 @@ def draft(input: Path, outputs: tuple[Path, ...], fmt: str | None, profiles: Pat
             click.echo(line, err=True)
 
     minutes = make_draft(input, options, progress, report)
+    if transcript_out is not None:
+        from ..asr import write_vtt
+        from ..model import Transcript
+
+        vtt = write_vtt(Transcript(minutes.utterances, source=str(input)))
+        write_atomic(transcript_out, vtt.encode("utf-8"), force=force, inputs=[input])
+        if not quiet:
+            click.echo(f"wrote {transcript_out} (the transcript the minutes cite)", err=True)
     if not targets:
         sys.stdout.buffer.write(render(minutes, fmt or "md"))
         sys.stdout.flush()
@@ -202,6 +126,3 @@ def _format_of(path: Path) -> str:
         )
     return kind
 
-
-if __name__ == "__main__":  # pragma: no cover
-    main()
