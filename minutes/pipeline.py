@@ -13,7 +13,7 @@ from pathlib import Path
 
 from .errors import InputError, UsageError
 from .meeting import MeetingFile, beside, load_meeting
-from .model import Minutes, Transcript
+from .model import Ledger, Minutes, Transcript
 from .segment import SegmentOptions
 
 # (stage, done, total): the CLI turns it into a progress line on stderr.
@@ -78,8 +78,13 @@ def _say(line: str) -> None:
 
 
 def draft(path: Path, options: DraftOptions = DraftOptions(),
-          progress: Progress = _quiet, report: Callable[[str], None] = _say) -> Minutes:
-    """Return draft minutes of the meeting in ``path``."""
+          progress: Progress = _quiet, report: Callable[[str], None] = _say,
+          initial: Ledger | None = None) -> Minutes:
+    """Return draft minutes of the meeting in ``path``.
+
+    ``initial`` is a ledger carried in from earlier meetings (a series): its open items
+    are in the ledger before the first segment, so this meeting can update them.
+    """
     from . import nlp
     from .final import finish
     from .relay.context import Combined, ReadContext
@@ -138,7 +143,7 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
         readers.append(_Reporting(llm_reader, report))
     reader = Combined(tuple(readers))
     progress("relay", 0, len(segments))
-    result = relay(segments, _Counting(reader, progress, len(segments)))
+    result = relay(segments, _Counting(reader, progress, len(segments)), initial)
     run_notes: list[str] = []
     if llm_reader is not None:
         from .relay.llm import describe
