@@ -34,19 +34,25 @@ if TYPE_CHECKING:
 
 _NEG = r"(?!not\b|n't\b|never\b)"
 _FUT = r"(?:'ll|will|shall|'m going to|'m gon na|am going to|am gon na|'m gonna)"
+# strong cues make an action with any verb that is not talk in the room; weak ones
+# ("I have to", "you need to": often generic) only with a verb of work
 SELF = re.compile(
-    r"(?:^|\s)(?<!if )i (?:" + _FUT + r"|can|need to|have to|'ve got to|got ta|should|must|"
-    r"'d better|'ll have to|will have to|'ll try (?:and|to)|'m (?:also )?(?:happy|glad) to|"
-    r"can also|'ll also|'ll just|volunteer to) " + _NEG
+    r"(?:^|\s)(?<!if )i (?:" + _FUT + r"|'d better|'ll have to|will have to|'ll try (?:and|to)|"
+    r"'m (?:also )?(?:happy|glad) to|'ll also|volunteer to|'ll go ahead and) (?!just )" + _NEG
+)
+SELF_WEAK = re.compile(  # "I'll just hold it": mostly the next minute, unless the verb is work
+    r"(?:^|\s)(?<!if )i (?:can|need to|have to|'ve got to|got ta|should|must|can also|'ll just|"
+    r"will just|'m just going to|'m just gon na) " + _NEG
 )
 LET_ME = re.compile(r"(?:^|\s)let me " + _NEG)
 OFFER = re.compile(r"(?:^|\s)(?:shall|should) i |(?:^|\s)(?:do you )?want me to ")
 REQUEST = re.compile(r"(?:^|\s)(?:can|could|would|will) you (?:please |maybe |also |just )*" + _NEG)
 SECOND = re.compile(
-    r"(?:^|\s)you (?:'ll|will|'re (?:going to|gon na)|are (?:going to|gon na)|need to|have to|"
-    r"'ve got to|'ll need to|'ll have to|must|'re (?:also )?(?:in charge of|responsible for)) " + _NEG
+    r"(?:^|\s)you (?:'ll|will|'re (?:going to|gon na)|are (?:going to|gon na)|"
+    r"'ll need to|'ll have to|'re (?:also )?(?:in charge of|responsible for)) " + _NEG
 )
-SECOND_WEAK = re.compile(r"(?:^|\s)you (?:should|can|could|might want to) " + _NEG)
+SECOND_WEAK = re.compile(r"(?:^|\s)you (?:should|can|could|might want to|need to|have to|"
+                         r"'ve got to|must) " + _NEG)
 WANT_YOU = re.compile(r"(?:^|\s)(?:i 'd like|i want|i need|i 'd want) you to ")
 PLEASE = re.compile(r"^(?:(?:\S+ ){0,2})please (?!note)")
 GROUP_SOMEONE = re.compile(
@@ -61,7 +67,8 @@ GROUP_WE = re.compile(
     + r"|'re all going to) " + _NEG
 )
 THIRD_AFTER = re.compile(
-    r"^(?:'s|'ll|will|is|are|can|should|could|needs to|has to|'ll have to|is to|to|"
+    r"^(?:'s|'ll|will|is|are|can|should|could|needs to|has to|'ll have to|is to|to|need to|"
+    r"have to|are to|and (?:the )?[a-z_]+ (?:need to|will|are going to|'ll|to)|"
     r"'s going to|'s gon na|is going to|is gon na|are going to|are gon na|and i 'll|and i will|"
     r"and you|'s going to be|will be) "
 )
@@ -185,11 +192,22 @@ def _phrase(state: State, sentence: Sentence, offset: int, names: list[str],
     return verb_phrase(sentence.span, start, drop_chars=drops, drop_names=names)
 
 
-def _immediate(sentence: Sentence, offset: int, due: str | None, due_text: str) -> bool:
-    """Return True for talk about the next minute ("I'll just show you quickly")."""
+def _immediate(task: str, due: str | None, due_text: str) -> bool:
+    """Return True for talk about the next minute ("I'll just go over it quickly")."""
     if due or due_text:
         return False
-    return bool(IMMEDIATE.search(sentence.toks[offset:]))
+    return bool(IMMEDIATE.search(task.lower()))
+
+
+_EMBEDDING = re.compile(r"(?:^|\s)(?:how|what|where|why|whether|if|when|something|anything|"
+                       r"everything|which|who|whatever|unless|once|until|before|after)$")
+_DENIAL = re.compile(r"(?:n't|not|never) (?:think|know|believe|say|sure|mean)\b|\bnot sure\b")
+
+
+def _embedded(toks: str, start: int) -> bool:
+    """Return True when the cue sits in a subordinate clause or a denial ("I don't think we...")."""
+    before = toks[:start].rstrip()
+    return bool(_EMBEDDING.search(before) or _DENIAL.search(before))
 
 
 def read_new(state: State, k: int, sentence: Sentence) -> Found | None:
@@ -217,45 +235,49 @@ def read_new(state: State, k: int, sentence: Sentence) -> Found | None:
         if re.match(r"i (?:'ll|will) ", rest):
             owner = turn.speaker
         cands.append((marker.end(), owner, False))
-    for pattern, who in ((SELF, "me"), (LET_ME, "me"), (OFFER, "me"), (REQUEST, "you"),
-                         (SECOND, "you"), (WANT_YOU, "you"), (SECOND_WEAK, "you?"),
-                         (GROUP_SOMEONE, None), (GROUP_WE, "we")):
+    for pattern, who, weak in ((SELF, "me", False), (LET_ME, "me", False), (OFFER, "me", False),
+                               (SELF_WEAK, "me", True), (REQUEST, "you", False),
+                               (SECOND, "you", False), (WANT_YOU, "you", False),
+                               (SECOND_WEAK, "you!", True), (GROUP_SOMEONE, None, False),
+                               (GROUP_WE, None, True)):
         m = pattern.search(toks)
-        if not m:
+        if not m or _embedded(toks, m.start()):
             continue
         if who == "me":
-            cands.append((m.end(), turn.speaker, False))
+            cands.append((m.end(), turn.speaker, weak))
         elif who == "you":
-            cands.append((m.end(), _addressee(state, k, sentence), False))
-        elif who == "you?":
-            person = _addressee(state, k, sentence, strict=True)
-            if person:
-                cands.append((m.end(), person, False))
-        elif who == "we":
-            cands.append((m.end(), None, True))
+            named = _addressee(state, k, sentence, strict=True)
+            # "you will" with nobody named is often generic ("you will save batteries")
+            cands.append((m.end(), named or _addressee(state, k, sentence), named is None))
+        elif who == "you!":
+            named = _addressee(state, k, sentence, strict=True)
+            if named:  # "you need to" only counts when said to somebody named
+                cands.append((m.end(), named, True))
         else:
-            cands.append((m.end(), None, False))
+            cands.append((m.end(), None, weak))
     # a person named as the subject: "Kim's going to send it", "the designer will look into it"
-    for name, _i0, i1 in mentions(sentence, state.ctx.directory):
+    for name, i0, i1 in mentions(sentence, state.ctx.directory):
         off = len(" ".join(t.lower_ for t in sentence.doc[sentence.span.start:i1])) + 1
         if off >= len(toks):
             continue
-        m = THIRD_AFTER.match(toks[off:])
-        if m and not (m.group(0).startswith("to ") and off > 30 and not marker):
+        tail = re.sub(r"^(?:_ )+|(?<= )_ ", "", toks[off:])  # AMI's "I_D_" splits off a "_"
+        m = THIRD_AFTER.match(tail)
+        if m and not (m.group(0).startswith("to ") and i0 - sentence.span.start > 5
+                      and not marker):
             owner = turn.speaker if "and i" in m.group(0) else name
-            cands.append((off + m.end(), owner, False))
+            cands.append((off, owner, False))
     if not cands and PLEASE.search(toks) and not sentence.is_question:
         m = PLEASE.search(toks)
         assert m is not None
         cands.append((m.end(), _addressee(state, k, sentence), False))
     cands.sort(key=lambda c: c[0])
     for offset, owner, need_work in cands:
-        if _immediate(sentence, offset, due, due_text):
-            continue
         task, verb = _phrase(state, sentence, offset, names, due_span)
         if verb is None or not task or len(task.split()) < 2:
             continue
-        if verb.i < sentence.token(offset) or verb.i - sentence.token(offset) > 4:
+        if _immediate(task, due, due_text):
+            continue
+        if verb.i < sentence.token(offset) or verb.i - sentence.token(offset) > 8:
             continue  # the verb is far from the cue: another clause
         lemma = verb.lemma_.lower()
         if lemma in ("be", "have") and not _work(verb, sentence):

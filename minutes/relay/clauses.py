@@ -44,6 +44,7 @@ WORK_COMPLEMENTS = {
     "take": ("care", "charge", "over"),
     "get": ("back", "in touch", "hold", "quote", "quotes", "price", "prices", "list", "figures"),
     "have": ("look", "chat", "word", "think"),
+    "think": ("about", "over", "through"),
     "go": ("over", "and"),
     "give": ("call", "ring", "update"),
     "put": ("together",),
@@ -277,9 +278,30 @@ def verb_phrase(span: Span, start: int, *, drop_chars: Iterable[tuple[int, int]]
     if verb is None:
         return "", None
     toks = [t for t in phrase_tokens(verb) if t.i < span.end]
-    if len(toks) <= 1:  # the parse lost the verb's dependents: take the words after it
-        toks = [t for t in span if t.i >= verb.i]
+    if len(toks) <= 2 or toks[-1].pos_ == "ADP":
+        toks = tail_tokens(span, verb)  # the parse hung the object elsewhere: read on
     return clean_phrase(toks, drop_chars=drop_chars, drop_names=drop_names), verb
+
+
+_NEW_CLAUSE = frozenset("i you we he she they it there".split())
+
+
+def tail_tokens(span: Span, verb: Token) -> list[Token]:
+    """Return the words from ``verb`` to the end of its clause, read left to right."""
+    out: list[Token] = []
+    toks = [t for t in span if t.i >= verb.i]
+    for k, tok in enumerate(toks):
+        nxt = toks[k + 1].lower_ if k + 1 < len(toks) else ""
+        if k and tok.lower_ in ("and", "but", "so", "because", "cause", "'cause", "or") and (
+                nxt in _NEW_CLAUSE):
+            break
+        if k and tok.is_punct and tok.text in ".;?!":
+            break
+        if k and tok.dep_ in ("nsubj", "nsubjpass") and tok.lower_ in _NEW_CLAUSE and not (
+                out and out[-1].lower_ in ("you",)) and nxt not in ("know", "mean"):
+            break
+        out.append(tok)
+    return out
 
 
 # --------------------------------------------------------------------------- people
@@ -294,11 +316,12 @@ def mentions(sentence: Sentence, directory: Directory, *, max_words: int = 3) ->
         hit = None
         for n in range(min(max_words, len(toks) - k), 0, -1):
             group = toks[k : k + n]
-            if n == 1 and (group[0].is_stop or not group[0].is_alpha or len(group[0].text) < 2):
+            word = group[0].text.replace("_", "")
+            if n == 1 and (group[0].is_stop or not word.isalpha() or len(word) < 2):
                 continue
             if any(t.is_punct for t in group):
                 continue
-            if n == 1 and group[0].pos_ not in ("PROPN", "NOUN") and not group[0].text[:1].isupper():
+            if n == 1 and group[0].pos_ not in ("PROPN", "NOUN", "X") and not word[:1].isupper():
                 continue
             person = directory.resolve(" ".join(t.text for t in group)) if directory.people else None
             if person is not None:
