@@ -87,6 +87,7 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
     """
     from . import nlp
     from .final import finish
+    from .procedure import ProcedureReader
     from .relay.context import Combined, ReadContext
     from .relay.ledger import relay
     from .relay.motions import MotionReader
@@ -134,7 +135,7 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
     segments = segment(transcript, parsed, seg_options)
 
     ctx = ReadContext(transcript, parsed, directory)
-    readers: list = [RulesReader(ctx), MotionReader(ctx)]
+    readers: list = [RulesReader(ctx), MotionReader(ctx), ProcedureReader(ctx)]
     llm_reader = None
     if backend is not None:
         from .relay.llm import LlmReader
