@@ -118,6 +118,8 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
         raise InputError("no speech or captions found in the file", path=str(path))
     transcript = replace(transcript, meeting=info)
     transcript, unknown = resolve_speakers(transcript, directory)
+    if not directory.people:
+        unknown = ()  # with no profiles at all, every label is "unknown": not news
     progress("read", 1, 1)
 
     progress("parse", 0, len(transcript.utterances))
