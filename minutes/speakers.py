@@ -94,6 +94,13 @@ def _text(table: dict[str, Any], key: str, path: Path, where: str) -> str:
     return value
 
 
+def _flag(table: dict[str, Any], key: str, path: Path, where: str) -> bool:
+    value = table.get(key, False)
+    if not isinstance(value, bool):
+        raise InputError(f"{where}'{key}' must be true or false, not {value!r}", path=str(path))
+    return value
+
+
 def read_toml(path: Path) -> dict[str, Any]:
     """Return the parsed TOML file, or raise InputError naming the line."""
     try:
@@ -134,7 +141,7 @@ def load_profiles(path: Path) -> Directory:
                     role=_text(entry, "role", file, where).strip().lower(),
                     aliases=_str_list(entry.get("aliases"), file, "aliases"),
                     organisation=_text(entry, "organisation", file, where),
-                    votes=bool(entry.get("votes", False)),
+                    votes=_flag(entry, "votes", file, where),
                     voice_sample=str((file.parent / sample).resolve()) if sample else "",
                 )
             )
@@ -149,7 +156,8 @@ def _roster(table: Any, path: Path, people: Sequence[Person]) -> Roster:
     if not isinstance(table, dict):
         raise InputError("'roster' must be a table: [roster]", path=str(path))
     quorum = table.get("quorum")
-    if quorum is not None and (not isinstance(quorum, int) or quorum < 1):
+    if quorum is not None and (not isinstance(quorum, int) or isinstance(quorum, bool)
+                               or quorum < 1):
         raise InputError("'quorum' must be a whole number of members, 1 or more", path=str(path))
     officers = tuple(
         (p.role, p.name) for p in people if p.role in OFFICES
@@ -160,7 +168,7 @@ def _roster(table: Any, path: Path, people: Sequence[Person]) -> Roster:
         officers=officers,
         quorum=quorum,
         two_thirds=_str_list(table.get("two_thirds"), path, "two_thirds"),
-        record_seconder=bool(table.get("record_seconder", False)),
+        record_seconder=_flag(table, "record_seconder", path, "roster: "),
     )
 
 
