@@ -15,7 +15,9 @@ from typing import Literal
 
 ActionStatus = Literal["open", "done", "dropped"]
 ProposalStatus = Literal["pending", "accepted", "rejected", "lapsed"]
-MotionOutcome = Literal["carried", "failed", "withdrawn", "tabled", "postponed", "referred", "pending"]
+MotionOutcome = Literal[
+    "carried", "failed", "withdrawn", "tabled", "postponed", "referred", "pending"
+]
 
 
 # --------------------------------------------------------------------------- transcript

@@ -12,7 +12,7 @@ from .errors import OutputError
 
 
 def check_target(path: Path, *, force: bool, inputs: Iterable[Path] = ()) -> None:
-    """Raise OutputError if ``path`` must not be written (it is an input, or exists without force)."""
+    """Raise OutputError if ``path`` must not be written (an input, or exists without force)."""
     target = path.resolve()
     for source in inputs:
         if source.exists() and target == source.resolve():
@@ -27,7 +27,7 @@ def check_target(path: Path, *, force: bool, inputs: Iterable[Path] = ()) -> Non
 
 def write_atomic(path: Path, data: bytes, *, force: bool = False,
                  inputs: Iterable[Path] = ()) -> None:
-    """Write ``data`` to ``path`` through a temporary file and a rename, so no partial file is left."""
+    """Write ``data`` to ``path`` via a temporary file and a rename: never a partial file."""
     check_target(path, force=force, inputs=inputs)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
     try:

@@ -172,7 +172,9 @@ def _roster(table: Any, path: Path, people: Sequence[Person]) -> Roster:
     )
 
 
-def resolve_speakers(transcript: Transcript, directory: Directory) -> tuple[Transcript, tuple[str, ...]]:
+def resolve_speakers(
+    transcript: Transcript, directory: Directory
+) -> tuple[Transcript, tuple[str, ...]]:
     """Return the transcript with labels resolved to names, and the labels left unknown."""
     unknown: dict[str, None] = {}
     utterances = []

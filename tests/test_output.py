@@ -35,7 +35,9 @@ def test_the_input_is_never_overwritten_even_with_force(tmp_path: Path) -> None:
     assert source.read_bytes() == b"WEBVTT\n"
 
 
-def test_a_failed_write_leaves_nothing_behind(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+def test_a_failed_write_leaves_nothing_behind(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     target = tmp_path / "m.md"
 
     def broken_fsync(fd: int) -> None:

@@ -65,7 +65,8 @@ def test_roster_members_are_the_voting_people_and_officers_come_from_roles(profi
     roster = load_profiles(profile).roster
     assert roster is not None
     assert roster.members == ("Ada Voss", "Ben Ortiz", "Chen Wu")
-    assert ("chair", "Ada Voss") in roster.officers and ("secretary", "Ben Ortiz") in roster.officers
+    assert ("chair", "Ada Voss") in roster.officers
+    assert ("secretary", "Ben Ortiz") in roster.officers
     assert roster.quorum == 3 and roster.two_thirds == ("amend the bylaws",)
 
 

@@ -29,7 +29,9 @@ from ..model import (
 
 Item = ActionItem | Decision | Proposal | Motion | Question | Event
 
-PREFIX: dict[type, str] = {ActionItem: "A", Decision: "D", Proposal: "P", Motion: "M", Question: "Q"}
+PREFIX: dict[type, str] = {
+    ActionItem: "A", Decision: "D", Proposal: "P", Motion: "M", Question: "Q"
+}
 FIELD: dict[type, str] = {
     ActionItem: "actions",
     Decision: "decisions",
