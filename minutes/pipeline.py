@@ -7,14 +7,20 @@ ingest -> speakers -> parse -> segment -> relay -> final. The CLI calls
 from __future__ import annotations
 
 import datetime as dt
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from .errors import InputError, UsageError
 from .meeting import MeetingFile, beside, load_meeting
-from .model import Ledger, Minutes, Transcript
+from .model import Ledger, Minutes, Segment, Transcript
 from .segment import SegmentOptions
+
+if TYPE_CHECKING:
+    from .asr import AsrOptions
+    from .relay.ledger import Op, SegmentReader
+    from .relay.llm import LlmReader
 
 # (stage, done, total): the CLI turns it into a progress line on stderr.
 Progress = Callable[[str, int, int], None]
@@ -34,7 +40,7 @@ class DraftOptions:
     encoding: str | None = None
     engine: str = "rules"
     segmentation: SegmentOptions = field(default_factory=SegmentOptions)
-    asr: object | None = None  # minutes.asr.AsrOptions for recordings
+    asr: AsrOptions | None = None  # for recordings; None: the defaults
     model: Path | None = None  # GGUF file for the llm engine
     threads: int = 1  # llama.cpp threads; 1 degrades gracefully on a busy 2-core machine
     context: int = 4096  # llama.cpp context size in tokens
@@ -46,18 +52,14 @@ def _quiet(stage: str, done: int, total: int) -> None:
 
 def read_input(path: Path, options: DraftOptions, progress: Progress = _quiet) -> Transcript:
     """Return the transcript of a caption file or, through speech recognition, a recording."""
+    from .asr.audio import is_recording
     from .ingest import read_transcript
 
-    suffix = path.suffix.lower()
-    try:
-        from .asr import AUDIO_EXTENSIONS
-    except ImportError:  # pragma: no cover - the asr package is part of minutes
-        AUDIO_EXTENSIONS = ()
-    if suffix in AUDIO_EXTENSIONS:
+    if is_recording(path):
         from .asr import AsrOptions, transcribe
 
-        asr_options = options.asr if options.asr is not None else AsrOptions()
-        return transcribe(path, asr_options,  # type: ignore[arg-type]
+        asr_options = options.asr if isinstance(options.asr, AsrOptions) else AsrOptions()
+        return transcribe(path, asr_options,
                           progress=lambda done, total: progress("transcribe", int(done),
                                                                 int(total)))
     return read_transcript(path, encoding=options.encoding)
@@ -130,14 +132,15 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
     if options.engine == "llm":
         from .relay.llm import LlamaBackend, words_budget
 
-        backend = LlamaBackend(options.model, threads=options.threads,  # type: ignore[arg-type]
+        assert options.model is not None  # checked above
+        backend = LlamaBackend(options.model, threads=options.threads,
                                context_tokens=options.context)
         seg_options = replace(seg_options, max_words=min(seg_options.max_words,
                                                          words_budget(backend)))
     segments = segment(transcript, parsed, seg_options)
 
     ctx = ReadContext(transcript, parsed, directory)
-    readers: list = [RulesReader(ctx), MotionReader(ctx), ProcedureReader(ctx)]
+    readers: list[SegmentReader] = [RulesReader(ctx), MotionReader(ctx), ProcedureReader(ctx)]
     llm_reader = None
     if backend is not None:
         from .relay.llm import LlmReader
@@ -163,17 +166,17 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
 class _Counting:
     """A reader wrapper that reports relay progress; it passes everything through."""
 
-    reader: object
+    reader: SegmentReader
     progress: Progress
     total: int
     done: int = 0
 
     @property
     def name(self) -> str:
-        return self.reader.name  # type: ignore[attr-defined,no-any-return]
+        return self.reader.name
 
-    def read(self, ledger, segment):  # type: ignore[no-untyped-def]
-        ops = self.reader.read(ledger, segment)  # type: ignore[attr-defined]
+    def read(self, ledger: Ledger, segment: Segment) -> Sequence[Op]:
+        ops = self.reader.read(ledger, segment)
         self.done += 1
         self.progress("relay", self.done, self.total)
         return ops
@@ -183,16 +186,16 @@ class _Counting:
 class _Reporting:
     """Wraps the llm reader to print tokens in/out and time after each step."""
 
-    reader: object
+    reader: LlmReader
     report: Callable[[str], None]
 
     @property
     def name(self) -> str:
-        return self.reader.name  # type: ignore[attr-defined,no-any-return]
+        return self.reader.name
 
-    def read(self, ledger, segment):  # type: ignore[no-untyped-def]
-        ops = self.reader.read(ledger, segment)  # type: ignore[attr-defined]
-        last = self.reader.log[-1]  # type: ignore[attr-defined]
+    def read(self, ledger: Ledger, segment: Segment) -> Sequence[Op]:
+        ops = self.reader.read(ledger, segment)
+        last = self.reader.log[-1]
         self.report(f"segment {segment.index + 1}: {last.tokens_in} tokens in, "
                     f"{last.tokens_out} out, {last.seconds:.1f} s, {last.accepted} kept, "
                     f"{sum(last.dropped.values())} dropped")

@@ -3,15 +3,19 @@
 from __future__ import annotations
 
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import click
 
-from . import Progress, guard, main
+from . import F, Progress, guard, main
+
+if TYPE_CHECKING:
+    from ..asr import AsrOptions
 
 CAPTION_SUFFIXES = (".vtt", ".srt")
 
 
-def asr_options(func):  # type: ignore[no-untyped-def]
+def asr_options(func: F) -> F:
     """Add the speech-recognition options shared by ``transcribe`` and ``draft``."""
     options = [
         click.option("--asr-model", type=click.Path(file_okay=False, exists=True, path_type=Path),
@@ -31,7 +35,7 @@ def asr_options(func):  # type: ignore[no-untyped-def]
 
 
 def make_asr_options(asr_model: Path | None, beam_size: int, language: str, no_vad: bool,
-                     asr_threads: int) -> object:
+                     asr_threads: int) -> AsrOptions:
     """Return ``minutes.asr.AsrOptions`` from the command-line values."""
     from ..asr import AsrOptions
 
@@ -61,7 +65,7 @@ def transcribe(input: Path, output: Path, asr_model: Path | None, beam_size: int
     check_target(output, force=force, inputs=[input])
     options = make_asr_options(asr_model, beam_size, language, no_vad, asr_threads)
     progress = Progress(quiet)
-    transcript = run_asr(input, options,  # type: ignore[arg-type]
+    transcript = run_asr(input, options,
                          progress=lambda done, total: progress("transcribe", int(done), int(total)))
     text = write_vtt(transcript) if suffix == ".vtt" else write_srt(transcript)
     write_atomic(output, text.encode("utf-8"), force=force, inputs=[input])

@@ -3,10 +3,14 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
-from ..model import Transcript
+from ..model import Ledger, Segment, Transcript
 from ..nlp import Parsed
 from ..speakers import Directory
+
+if TYPE_CHECKING:
+    from .ledger import Op, SegmentReader
 
 
 @dataclass(frozen=True)
@@ -22,14 +26,14 @@ class ReadContext:
 class Combined:
     """A reader that runs several readers on each segment, in order, against the same ledger."""
 
-    readers: tuple  # of SegmentReader
+    readers: tuple[SegmentReader, ...]
     name: str = "rules"
 
-    def read(self, ledger, segment):  # type: ignore[no-untyped-def]
+    def read(self, ledger: Ledger, segment: Segment) -> list[Op]:
         """Return the operations of every reader, in order."""
         from .ledger import apply
 
-        ops: list = []
+        ops: list[Op] = []
         for reader in self.readers:
             new = list(reader.read(ledger, segment))
             ops.extend(new)

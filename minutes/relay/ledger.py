@@ -12,22 +12,25 @@ from __future__ import annotations
 import datetime as dt
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field, replace
-from typing import Protocol
+from typing import Protocol, cast
 
 from ..model import (
     ActionItem,
+    ActionStatus,
     Change,
     Decision,
     Event,
     Ledger,
     Motion,
     Proposal,
+    ProposalStatus,
     Question,
     Segment,
     Vote,
 )
 
-Item = ActionItem | Decision | Proposal | Motion | Question | Event
+Tracked = ActionItem | Decision | Proposal | Motion | Question  # items with ids and history
+Item = Tracked | Event
 
 PREFIX: dict[type, str] = {
     ActionItem: "A", Decision: "D", Proposal: "P", Motion: "M", Question: "Q"
@@ -64,7 +67,10 @@ Op = Add | Update
 class SegmentReader(Protocol):
     """A reader of one segment: proposes operations given the ledger so far."""
 
-    name: str
+    @property
+    def name(self) -> str:
+        """Return the reader's name, recorded with each step (e.g. "rules", "llm")."""
+        ...
 
     def read(self, ledger: Ledger, segment: Segment) -> Sequence[Op]:
         """Return the operations this segment supports."""
@@ -95,12 +101,12 @@ def next_id(ledger: Ledger, kind: type) -> str:
     return f"{PREFIX[kind]}{len(items) + 1}"
 
 
-def find(ledger: Ledger, item_id: str) -> Item | None:
+def find(ledger: Ledger, item_id: str) -> Tracked | None:
     """Return the item with ``item_id``, or None."""
     for name in ("actions", "decisions", "proposals", "motions", "questions"):
         for item in getattr(ledger, name):
             if item.id == item_id:
-                return item  # type: ignore[no-any-return]
+                return item
     return None
 
 
@@ -125,11 +131,11 @@ def _add(ledger: Ledger, item: Item) -> Ledger:
     return _put(ledger, item)
 
 
-def _with_evidence(item: Item, change: Change) -> Item:
+def _with_evidence(item: Tracked, change: Change) -> Tracked:
     evidence = item.evidence
     if change.evidence not in evidence:
         evidence = evidence + (change.evidence,)
-    return replace(item, history=item.history + (change,), evidence=evidence)  # type: ignore[arg-type]
+    return replace(item, history=item.history + (change,), evidence=evidence)
 
 
 def _update(ledger: Ledger, op: Update) -> tuple[Ledger, str | None]:
@@ -146,7 +152,7 @@ def _update(ledger: Ledger, op: Update) -> tuple[Ledger, str | None]:
         elif kind == "task" and value:
             item = replace(item, task=value)
         elif kind in ("done", "dropped"):
-            item = replace(item, status=kind)
+            item = replace(item, status=cast(ActionStatus, kind))
         elif kind == "reopened":
             item = replace(item, status="open")
         else:
@@ -156,7 +162,7 @@ def _update(ledger: Ledger, op: Update) -> tuple[Ledger, str | None]:
             return ledger, f"{op.target}: a proposal cannot take {kind!r}"
         if item.status != "pending":
             return ledger, f"{op.target}: proposal is already {item.status}"
-        item = replace(item, status=kind)
+        item = replace(item, status=cast(ProposalStatus, kind))
         if kind == "accepted":
             decision = Decision(
                 id="",

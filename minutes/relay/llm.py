@@ -409,7 +409,7 @@ class LlmReader:
         if found is None:
             return None
         utterance, quote = found
-        subject = getattr(target, "task", None) or getattr(target, "text", "")
+        subject = str(getattr(target, "task", None) or getattr(target, "text", ""))
         # The cited words must be about the item: share a content word with it, or be a
         # direct reply right after it was raised (for an action, only from its owner).
         # Blanket orders ("mark every action done") share nothing with any one task and
