@@ -2,13 +2,14 @@
 
 from __future__ import annotations
 
+import re
 from collections import Counter
 from collections.abc import Sequence
 from dataclasses import replace
 
 from .keypoints import key_points, summarise
 from .meeting import choose_template
-from .model import Minutes, Segment, Transcript
+from .model import Event, Minutes, Segment, Transcript
 from .nlp import Parsed
 from .procedure import quorum
 from .relay.context import ReadContext
@@ -58,8 +59,40 @@ def finish(
         utterances=transcript.utterances,
         template=template or choose_template(meeting),
         unknown_speakers=tuple(unknown_speakers),
-        not_discussed=not_discussed(segments, meeting.agenda),
+        not_discussed=tuple(t for t in not_discussed(segments, meeting.agenda)
+                            if not _taken_up(t, ledger.events)),
         notes=tuple(run_notes),
         roster=directory.roster,
         quorum=quorum(people, directory.roster),
     )
+
+
+# Words that name each procedural event, as agenda titles tend to put them.
+EVENT_WORDS = {
+    "call_to_order": {"call", "order", "roll"},
+    "roll_call": {"roll", "call", "attendance"},
+    "public_comment": {"public", "comment", "comments"},
+    "minutes_approved": {"minutes", "approval", "approve"},
+    "adjournment": {"adjourn", "adjournment"},
+    "report": {"report", "reports"},
+    "recess": {"recess", "break"},
+}
+SMALL = frozenset("a an and the of to for on in by with from".split())
+
+
+def _words(text: str) -> set[str]:
+    return {w.removesuffix("'s") for w in re.findall(r"[a-z']+", text.lower())} - SMALL
+
+
+def _taken_up(title: str, events: Sequence[Event]) -> bool:
+    """Return whether a procedural event shows the agenda item was taken up.
+
+    Short items (call to order, a report, public comment) are often too short for
+    topic segmentation to give them a part of their own; the event says they happened.
+    """
+    wanted = _words(title)
+    for event in events:
+        said = EVENT_WORDS.get(event.kind, set()) | _words(event.detail)
+        if len(wanted & said) >= min(2, len(wanted)):
+            return True
+    return False

@@ -216,7 +216,10 @@ def attendance(
             continue  # a profile of someone who had no part in this meeting
         out.append(Attendee(name, person.role, present, kind_of(person, name)))
         seen.add(name)
+    resolved_any = bool(directory.people)
     for name in _ordered(list(transcript.speakers) + sorted(listed_present)):
+        if resolved_any and directory.resolve(name) is None and name not in listed_present:
+            continue  # a caption label no profile knows ("Public Speaker"): listed apart
         if name not in seen:
             out.append(Attendee(name, "", name not in listed_absent, "guest"))
             seen.add(name)

@@ -8,7 +8,7 @@ import pytest
 
 from minutes.errors import InputError
 from minutes.model import MeetingInfo, Transcript, Utterance
-from minutes.speakers import attendance, load_profiles, resolve_speakers
+from minutes.speakers import Directory, attendance, load_profiles, resolve_speakers
 
 PROFILE = """
 [roster]
@@ -88,7 +88,14 @@ def test_attendance_marks_members_present_when_they_speak_or_are_listed(profile:
     assert people["Ben Ortiz"].present  # listed present, never spoke
     assert not people["Chen Wu"].present and people["Chen Wu"].kind == "member"
     assert people["Dara Quinn"].kind == "staff"
-    assert people["Guest 1"].kind == "guest"
+    # a label no profile knows is listed apart (unknown speakers), not guessed into attendance
+    assert "Guest 1" not in people
+
+
+def test_without_profiles_everyone_who_speaks_attends() -> None:
+    t = Transcript((utt(0, "Mei"), utt(1, "Speaker 2")))
+    people = attendance(t, Directory(), MeetingInfo())
+    assert [(a.name, a.present) for a in people] == [("Mei", True), ("Speaker 2", True)]
 
 
 def test_listed_absent_overrides_speaking(profile: Path) -> None:
