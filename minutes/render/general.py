@@ -6,10 +6,12 @@ from ..model import Minutes
 from .blocks import Block, Bullets, Document, Heading, italic, line, lit, para
 from .parts import (
     action_table,
+    carried_table,
     closing,
     created,
     decision_table,
     fact,
+    is_carried,
     meeting_time,
     motion_table,
     names,
@@ -84,7 +86,11 @@ def build_general(minutes: Minutes) -> Document:
     if minutes.not_discussed:
         blocks += [section("Agenda items not discussed"), plain_list(minutes.not_discussed)]
     blocks += [section("Decisions"), decision_table(ledger.decisions)]
-    blocks += [section("Action items"), action_table(ledger.actions)]
+    carried = carried_table(minutes)
+    if carried is not None:  # a meeting of a series: what became of earlier items
+        blocks += [section("Carried from earlier meetings"), carried]
+    blocks += [section("Action items"),
+               action_table(tuple(a for a in ledger.actions if not is_carried(a)))]
     if ledger.motions:
         record = minutes.roster.record_seconder if minutes.roster else True
         blocks += [section("Motions"), motion_table(ledger.motions, record)]

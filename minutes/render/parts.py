@@ -5,7 +5,17 @@ from __future__ import annotations
 import datetime as dt
 import re
 
-from ..model import ActionItem, Attendee, Decision, Minutes, Motion, Question, Segment
+from ..model import (
+    ActionItem,
+    Attendee,
+    Change,
+    Decision,
+    Minutes,
+    Motion,
+    Proposal,
+    Question,
+    Segment,
+)
 from .blocks import Block, Bullets, Heading, Inline, Rule, Table, bold, line, lit, para
 from .text import (
     DASH,
@@ -121,6 +131,62 @@ def action_table(actions: tuple[ActionItem, ...]) -> Block:
     return Table(("No.", "Action", "Owner", "Due", "Status", "Time", "Cue"),
                  tuple((a.id, a.task, or_dash(a.owner), due_text(a), a.status, clock(a.time),
                         cue_of(a.evidence)) for a in actions))
+
+
+def is_carried(item: ActionItem | Proposal) -> bool:
+    """Return whether an item came in from an earlier meeting of a series."""
+    return item.source == "series"
+
+
+def _here(item: ActionItem | Proposal) -> tuple[Change, ...]:
+    # A series marks where an item entered this meeting with a "carried" change
+    # (minutes/series.py); what follows the last mark happened in this meeting.
+    from ..series import changes_here
+
+    # the final pass lapses every proposal still pending at the end: not a change said here
+    return tuple(c for c in changes_here(item) if c.kind != "lapsed")
+
+
+_CHANGE_WORDS = {"created": "mentioned again", "done": "done", "dropped": "dropped",
+                 "reopened": "reopened", "accepted": "agreed", "rejected": "rejected",
+                 "task": "reworded"}
+
+
+def _change_text(c: Change) -> str:
+    if c.kind in ("owner", "due"):
+        return f"{c.kind} → {c.value or DASH}"
+    return _CHANGE_WORDS.get(c.kind, c.kind)
+
+
+def carried_table(minutes: Minutes) -> Block | None:
+    """Return the table of items carried from earlier meetings, or None when there are none."""
+    from ..series import origin_of
+
+    items: list[ActionItem | Proposal] = [
+        *(a for a in minutes.ledger.actions if is_carried(a)),
+        *(p for p in minutes.ledger.proposals if is_carried(p))]
+    if not items:
+        return None
+    rows = []
+    for item in items:
+        here = _here(item)
+        last = here[-1].evidence if here else None
+        if isinstance(item, ActionItem):
+            text, owner, due, status = item.task, or_dash(item.owner), due_text(item), item.status
+        else:
+            text, owner, due = item.text, or_dash(item.by), DASH
+            # a carried proposal nobody took up lapses for good (minutes/series.py)
+            status = "lapsed (not taken up)" if item.status == "lapsed" else item.status
+        origin = origin_of(item)
+        if re.match(r"\d{4}-\d\d-\d\d ", origin):  # "2026-11-04 Weekly call": the date says it
+            origin = origin.split(" ", 1)[0]
+        rows.append((item.id, text, or_dash(origin), owner, due, status,
+                     "; ".join(_change_text(c) for c in here) or "not discussed",
+                     f"“{last.quote}”" if last and last.quote else DASH,
+                     clock(last.start) if last else DASH,
+                     (last.cue or DASH) if last else DASH))
+    return Table(("No.", "Item", "Raised", "Owner", "Due", "Status", "What changed here",
+                  "Said", "Time", "Cue"), tuple(rows))
 
 
 def seconder_text(motion: Motion, record_names: bool) -> str:
