@@ -111,3 +111,4 @@ def main() -> None:
 from . import draft as _draft  # noqa: E402,F401  (registers the command)
 from . import transcribe as _transcribe  # noqa: E402,F401
 from . import series as _series  # noqa: E402,F401
+from . import review as _review  # noqa: E402,F401

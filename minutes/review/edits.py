@@ -436,7 +436,8 @@ def apply_review(data: dict[str, Any], review: dict[str, Any], *,
     """Return a copy of the draft's JSON dict with the review applied.
 
     With ``drop_rejected=False`` rejected items stay, and every reviewable item gets
-    ``review_state`` and ``edited`` (the fields changed): the view the review page shows.
+    ``review_state`` and ``edited`` (the fields changed), and motions ``draft_flags``:
+    the view the review page shows.
     """
     out = copy.deepcopy(data)
     for entry in review["added"]:
@@ -448,6 +449,8 @@ def apply_review(data: dict[str, Any], review: dict[str, Any], *,
         for item in out[key]:
             entry = review["items"].get(item["id"], {})
             fields = entry.get("fields", {})
+            if not drop_rejected and key == "motions":
+                item["draft_flags"] = list(item.get("flags", []))  # to tick back on
             for field, value in fields.items():
                 _set(key, item, field, value)
             if entry.get("state") == "rejected":
