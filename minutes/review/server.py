@@ -212,7 +212,11 @@ class ReviewHandler(BaseHTTPRequestHandler):
             self.wfile.write(body)
 
     def _json(self, status: int, payload: Any) -> None:
-        body = json.dumps(payload, ensure_ascii=False).encode("utf-8")
+        text = json.dumps(payload, ensure_ascii=False)
+        # Markup characters only occur inside JSON strings, where \u escapes mean the same;
+        # so no caption reaches the wire as a tag, even to a client that sniffs.
+        text = text.replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
+        body = text.encode("utf-8")
         self._send(status, body, "application/json; charset=utf-8")
 
     def _error(self, status: int, message: str) -> None:
