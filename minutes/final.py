@@ -9,7 +9,7 @@ from dataclasses import replace
 
 from .keypoints import key_points, summarise
 from .meeting import choose_template
-from .model import Event, Minutes, Segment, Transcript
+from .model import ActionItem, Decision, Event, Ledger, Minutes, Question, Segment, Transcript
 from .nlp import Parsed
 from .procedure import quorum
 from .relay.context import ReadContext
@@ -33,7 +33,7 @@ def finish(
 ) -> Minutes:
     """Return the minutes of a meeting from its transcript, segments and relay result."""
     ctx = ReadContext(transcript, parsed, directory)
-    ledger = settle(reconcile(result.ledger, ctx), ctx)
+    ledger = _without_procedure(settle(reconcile(result.ledger, ctx), ctx))
     segments = tuple(replace(s, points=key_points(s, parsed)) for s in segments)
     people = attendance(transcript, directory, transcript.meeting)
     meeting = transcript.meeting
@@ -96,3 +96,34 @@ def _taken_up(title: str, events: Sequence[Event]) -> bool:
         if len(wanted & said) >= min(2, len(wanted)):
             return True
     return False
+
+
+def _without_procedure(ledger: Ledger) -> Ledger:
+    """Return the ledger without actions, decisions and questions that are motion procedure.
+
+    "I'll second that", "I abstain on this one", "is there a motion to approve?" read
+    like commitments and questions, but the motion or the procedural event already
+    records them, with the same evidence. An item first said in an utterance that a
+    motion or event cites is dropped; so is an informal decision that restates a
+    motion's wording.
+    """
+    cited = {e.utterance for m in ledger.motions for e in m.evidence}
+    cited |= {e.utterance for ev in ledger.events for e in ev.evidence}
+    if not cited:
+        return ledger
+    motion_words = [_words(m.text) for m in ledger.motions]
+
+    def procedural(item: ActionItem | Decision | Question) -> bool:
+        if item.evidence and item.evidence[0].utterance in cited:
+            return True
+        if isinstance(item, Decision):
+            words = _words(item.text)
+            return any(len(words & mw) >= 0.6 * max(len(words), 1) for mw in motion_words)
+        return False
+
+    return replace(
+        ledger,
+        actions=tuple(a for a in ledger.actions if not procedural(a)),
+        decisions=tuple(d for d in ledger.decisions if not procedural(d)),
+        questions=tuple(q for q in ledger.questions if not procedural(q)),
+    )
