@@ -34,6 +34,11 @@
       else if (key === "dataset") Object.assign(node.dataset, value);
       else node.setAttribute(key, value === true ? "" : String(value));
     }
+    return add(node, ...children);
+  }
+
+  // Append children as nodes; strings become text nodes; null and false are skipped.
+  function add(node, ...children) {
     for (const child of children.flat()) {
       if (child === null || child === undefined || child === false) continue;
       node.append(typeof child === "string" ? document.createTextNode(child) : child);
@@ -241,24 +246,24 @@
 
   function fieldLine(kind, item) {
     const parts = [];
-    const add = (label, value, cls) => parts.push(el("span", { class: "field" + (cls ? " " + cls : "") },
+    const put = (label, value, cls) => parts.push(el("span", { class: "field" + (cls ? " " + cls : "") },
       el("span", { class: "field-label", text: label + " " }), el("span", { class: "field-value", "data-field": label.toLowerCase(), text: value })));
     if (kind.key === "actions") {
-      add("Owner", item.owner || "—", isUnnamed(item.owner) || !item.owner ? "check" : "");
-      add("Due", item.due || (item.due_text ? "“" + item.due_text + "” (not resolved)" : "—"));
-      add("Status", item.status);
+      put("Owner", item.owner || "—", isUnnamed(item.owner) || !item.owner ? "check" : "");
+      put("Due", item.due || (item.due_text ? "“" + item.due_text + "” (not resolved)" : "—"));
+      put("Status", item.status);
     } else if (kind.key === "decisions") {
-      add("By", item.by || "—", isUnnamed(item.by) ? "check" : "");
+      put("By", item.by || "—", isUnnamed(item.by) ? "check" : "");
     } else if (kind.key === "motions") {
       const v = item.vote;
       const count = (n) => (n === null || n === undefined ? "?" : String(n));
-      add("Mover", item.mover || "—", isUnnamed(item.mover) || !item.mover ? "check" : "");
-      add("Seconder", item.seconder || "none heard", isUnnamed(item.seconder) ? "check" : "");
-      add("Vote", count(v.for) + "–" + count(v.against) + "–" + count(v.abstain) + " (for–against–abstain)", [v.for, v.against, v.abstain].includes(null) ? "check" : "");
-      add("Outcome", item.outcome);
+      put("Mover", item.mover || "—", isUnnamed(item.mover) || !item.mover ? "check" : "");
+      put("Seconder", item.seconder || "none heard", isUnnamed(item.seconder) ? "check" : "");
+      put("Vote", count(v.for) + "–" + count(v.against) + "–" + count(v.abstain) + " (for–against–abstain)", [v.for, v.against, v.abstain].includes(null) ? "check" : "");
+      put("Outcome", item.outcome);
     } else {
-      add("Asked by", item.asked_by || "—", isUnnamed(item.asked_by) ? "check" : "");
-      add("Answered", item.answered ? "yes" : "no");
+      put("Asked by", item.asked_by || "—", isUnnamed(item.asked_by) ? "check" : "");
+      put("Answered", item.answered ? "yes" : "no");
     }
     return parts;
   }
@@ -274,7 +279,7 @@
     const text = kind.key === "actions" ? item.task : item.text;
     const stateTag = { accepted: el("span", { class: "tag tag-accepted", text: "Accepted" }),
       rejected: el("span", { class: "tag tag-rejected", text: "Rejected: left out of the minutes" }) }[st] || null;
-    card.append(
+    add(card,
       el("div", { class: "item-head" },
         el("span", { class: "item-id", text: item.id }),
         el("button", { type: "button", class: "link time", title: "Show in the transcript", onclick: (e) => { e.stopPropagation(); select(item.id, true); }, text: clock(item.time) }),
