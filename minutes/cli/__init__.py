@@ -112,3 +112,4 @@ from . import draft as _draft  # noqa: E402,F401  (registers the command)
 from . import transcribe as _transcribe  # noqa: E402,F401
 from . import series as _series  # noqa: E402,F401
 from . import review as _review  # noqa: E402,F401
+from . import digest as _digest  # noqa: E402,F401
