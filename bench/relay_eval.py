@@ -333,7 +333,8 @@ def evaluate(names: Sequence[tuple[str, str]] | None = None, *, verbose: bool = 
         print(f"mean over {f['meetings_actions']} AMI meetings, actions: "
               f"P {f['actions_p']:.3f} R {f['actions_r']:.3f} F1 {f['actions_f1']:.3f} "
               f"(keyword baseline F1 {f['actions_base_f1']:.3f})")
-        print(f"ROUGE-1 F of decision texts: {f['rouge1']:.3f} (baseline acts {f['rouge1_base']:.3f})")
+        print(f"ROUGE-1 F of decision texts: {f['rouge1']:.3f} "
+              f"(baseline acts {f['rouge1_base']:.3f})")
         print(f"owner accuracy on matched AMI actions: {f['owner_accuracy']:.3f} of "
               f"{owner_total} (role profiles); {f['owner_accuracy_no_profiles']:.3f} of "
               f"{plain_total} (no profiles)")

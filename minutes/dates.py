@@ -61,7 +61,8 @@ def _number_words() -> list[tuple[str, str]]:
         for unit_word, unit in _ORD.items():
             if unit < 10:
                 for sep in (" ", "-"):
-                    pairs.append((f"{tens_word}{sep}{unit_word}", f"{tens + unit}{_suffix(tens + unit)}"))
+                    n = tens + unit
+                    pairs.append((f"{tens_word}{sep}{unit_word}", f"{n}{_suffix(n)}"))
         for unit in range(1, 10):
             for sep in (" ", "-"):
                 pairs.append((f"{tens_word}{sep}{_UNITS[unit]}", str(tens + unit)))

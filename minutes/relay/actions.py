@@ -23,6 +23,7 @@ from .clauses import (
     evidence,
     mentions,
     overlap,
+    similar,
     stem,
     verb_phrase,
 )
@@ -72,7 +73,8 @@ THIRD_AFTER = re.compile(
     r"'s going to|'s gon na|is going to|is gon na|are going to|are gon na|and i 'll|and i will|"
     r"and you|'s going to be|will be) "
 )
-MARKER = re.compile(r"(?:^|\s)(?:action (?:item|point)s?|to do|todo|to-do|next steps?) (?::|-|is|for) ?")
+MARKER = re.compile(r"(?:^|\s)(?:action (?:item|point)s?|to do|todo|to-do|next steps?) (?::|-|"
+                    r"is|for) ?")
 # taking an item: "I'll take that", "leave it with me"; reassigning: "actually Kim will do it"
 TAKE_VERBS = r"(?:take|handle|do|grab|cover|own|pick up|look after|deal with|sort out|sort)"
 TAKE = re.compile(
@@ -82,27 +84,36 @@ TAKE = re.compile(
     + TAKE_VERBS + r" (?:that|it|this|those|them|these|over|on)\b(?: one)?"
     r"|(?:^|\s)(?P<who6>i|[a-z][a-z'_-]*) (?:'ll|will|can|should|'s going to|is going to|'s gon na|"
     r"is gon na) (?:(?:actually|instead|then|just|also) )*(?:take (?:over )?|handle |do |cover |"
-    r"pick up |deal with )(?:the|that|this) (?P<obj>[a-z][a-z '_-]+?)(?: instead| then)?\s*[.!]?$"
+    r"pick up |deal with )(?:the|that|this) (?P<obj>[a-z][a-z'_-]*(?: (?!still|instead|then|now|"
+    r"before|by|and|on)[a-z][a-z'_-]*){0,4})"
+    r"|(?:^|\s)(?:can|could|would|will) (?P<who7>you) (?:(?:please|maybe|also|just) )*(?:take|"
+    r"handle|"
+    r"do|cover|own|pick up|be there for|be there|look after) (?:that|it|this|those|them)?\b"
     r"|(?:^|\s)leave (?:it|that|this) (?:with|to) (?P<who2>me)\b"
     r"|(?:^|\s)(?P<who3>i) 'm on it\b"
-    r"|(?:^|\s)(?:give|hand|pass|assign) (?:that|it|this)(?: one)? (?:to|over to) (?P<who4>[a-z]+)\b"
+    r"|(?:^|\s)(?:give|hand|pass|assign) (?:that|it|this)(?: one)? (?:to|"
+    r"over to) (?P<who4>[a-z]+)\b"
     r"|(?:^|\s)let (?P<who5>[a-z]+) (?:take|do|handle) (?:that|it|this)\b"
 )
 REASSIGN_WORDS = re.compile(r"\b(?:actually|instead|rather|over|change of plan|no wait)\b")
 DUE_CHANGE = re.compile(
-    r"\b(?:push|pushed|move|moved|postpone|postponed|shift|delay|delayed|bump|put (?:that|it|this) off|"
-    r"extend|bring (?:that|it|this) forward|change|make|making|reschedule)\b.*\b(?:to|until|till|for|"
+    r"\b(?:push|pushed|move|moved|postpone|postponed|shift|delay|delayed|bump|put (?:that|it|"
+    r"this) off|"
+    r"extend|bring (?:that|it|this) forward|change|make|making|reschedule)\b.*\b(?:to|until|"
+    r"till|for|"
     r"by|on|next|in)\b|\b(?:can|could) wait (?:until|till)\b|\blet 's say\b|\binstead\b"
 )
 DONE = re.compile(
-    r"(?:^|\s)(?:i|we|he|she|they|[a-z]+) (?:'ve |have |has |'s )?(?:already |just |finally )?"
-    r"(?P<verb>sent|done|did|finished|completed|booked|emailed|called|submitted|fixed|sorted|"
-    r"ordered|paid|signed|written|wrote|checked|contacted|rang|bought|printed|posted|uploaded|"
-    r"shared|circulated|arranged|organised|organized|scheduled|confirmed|updated|spoke|talked|"
-    r"filled|drafted|prepared|reserved|cancelled|canceled|delivered|returned|renewed|researched)\b"
+    r"(?:^|\s)(?P<who>i|we|he|she|they|you) (?:(?:'ve|have|has|'s) (?:already |just |finally )?|"
+    r"(?:already|just|finally) )(?P<verb>sent|done|did|finished|completed|booked|emailed|called|"
+    r"submitted|fixed|sorted|ordered|paid|signed|written|wrote|checked|contacted|rang|bought|"
+    r"printed|"
+    r"posted|uploaded|shared|circulated|arranged|organised|organized|scheduled|confirmed|updated|"
+    r"spoken|spoke|talked|filled|drafted|prepared|reserved|cancelled|canceled|delivered|returned|"
+    r"renewed|researched|measured|scanned|replied|asked)\b"
     r"|(?:^|\s)(?:that|it|this|the [a-z]+|those|they) (?:'s|is|has been|'s been|are|were|was) "
     r"(?:already |all |now )?(?P<state>done|finished|sorted|taken care of|complete|completed|sent|"
-    r"booked|handled|dealt with|fixed|ready|out|in|signed|submitted|paid|filed)\b"
+    r"booked|handled|dealt with|fixed|signed|submitted|paid|filed)\b"
 )
 DROP = re.compile(
     r"(?:^|\s)(?:let 's |we can |we could |we should |we 'll |just |so )?(?:forget|drop|scrap|"
@@ -112,7 +123,8 @@ DROP = re.compile(
     r"(?: any ?more| after all)?\s*[.!]?$"
     r"|(?:^|\s)no need (?:to|for) (?P<what4>.+)"
 )
-IMMEDIATE = re.compile(r"\b(?:now|right now|first|quickly|briefly|here|at the moment|in a minute|"
+IMMEDIATE = re.compile(r"\b(?:let (?:you|us|them|everyone) go|(?:it|that|this) down|now|"
+                       r"right now|first|quickly|briefly|here|at the moment|in a minute|"
                        r"in a second|in a sec|real quick|for a second|for a moment|on the board|"
                        r"on the screen|on the whiteboard|for you|with you|to you|you guys)\b")
 # verbs that make "we will ..." an action of the group rather than a plan for the product
@@ -125,6 +137,13 @@ WORK_VERBS = frozenset(
     "recommend suggest reply respond speak talk visit interview hire fix finish deliver "
     "produce sort pay invoice reserve renew cancel register apply".split()
 )
+# "we need to think about it" is the discussion itself, not a task the minutes should carry
+WE_WORK_VERBS = WORK_VERBS - frozenset(
+    "think discuss design build work look get come present meet talk speak figure produce fix "
+    "sort recommend suggest study test evaluate".split()
+)
+FUTURE = re.compile(r"(?:^|\s)(?:i|we|you|he|she|they) (?:'ll|will|'re going to|'m going to|"
+                    r"'m gon na|'re gon na|can|need to|have to)\s")
 WINDOW = 300.0  # seconds in which "that" can still point at an item
 
 
@@ -148,8 +167,17 @@ def _work(verb: Token, sentence: Sentence) -> bool:
     comps = WORK_COMPLEMENTS.get(lemma)
     if comps is None:
         return False
-    following = " ".join(t.lower_ for t in verb.doc[verb.i + 1 : min(verb.i + 5, sentence.span.end)])
+    end = min(verb.i + 5, sentence.span.end)
+    following = " ".join(t.lower_ for t in verb.doc[verb.i + 1 : end])
+    if lemma == "do" and re.match(r"(?:the|a|an|our|some|all the) [a-z]", following):
+        return True  # "I'll do the sign-up sheet": a task; "do that" is taking one (TAKE)
+    if lemma == "think" and re.match(r"about (?:it|that|this)\b", following):
+        return False  # "I'll think about it" promises nothing
     return any(re.search(rf"\b{re.escape(c)}\b", following) for c in comps) if comps else True
+
+
+def _work_word(lemma: str) -> bool:
+    return lemma not in TALK_VERBS
 
 
 def _due(state: State, sentence: Sentence) -> tuple[str | None, str, tuple[int, int] | None]:
@@ -161,7 +189,8 @@ def _due(state: State, sentence: Sentence) -> tuple[str | None, str, tuple[int, 
     at = sentence.text.lower().find(phrase.lower())
     span = None
     if at >= 0:
-        base = sentence.span.start_char + (len(sentence.span.text) - len(sentence.span.text.lstrip()))
+        text = sentence.span.text
+        base = sentence.span.start_char + (len(text) - len(text.lstrip()))
         span = (base + at, base + at + len(phrase))
     return (date.isoformat() if date else None), phrase, span
 
@@ -210,86 +239,126 @@ def _embedded(toks: str, start: int) -> bool:
     return bool(_EMBEDDING.search(before) or _DENIAL.search(before))
 
 
-def read_new(state: State, k: int, sentence: Sentence) -> Found | None:
-    """Return the new action a sentence states, or None."""
+def _clause_due(state: State, sentence: Sentence, start: int, end: int
+                ) -> tuple[str | None, str, tuple[int, int] | None]:
+    """Return the due date said in tokens [start, end) of the sentence's doc."""
+    meeting = state.ctx.transcript.meeting
+    span = sentence.doc[start:end]
+    date, phrase = resolve_due(span.text, meeting.date, meeting.next_meeting)
+    if not phrase:
+        return None, "", None
+    at = span.text.lower().find(phrase.lower())
+    chars = (span.start_char + at, span.start_char + at + len(phrase)) if at >= 0 else None
+    return (date.isoformat() if date else None), phrase, chars
+
+
+_NOT_PLAN = re.compile(r"^(?:already|just|not|never|been|got|also got|n't)\b")
+
+
+def read_new(state: State, k: int, sentence: Sentence) -> list[Found]:
+    """Return the new actions a sentence states (one per commitment in it)."""
     turn = state.turns[k]
     toks = sentence.toks
     if sentence.is_question and not (REQUEST.search(toks) or OFFER.search(toks)
                                      or GROUP_SOMEONE.search(toks)):
-        return None
+        return []
     if re.search(r"(?:^|\s)(?:if|when|whether|unless) (?:i|you|we|someone) ", toks[:40]) and not \
             MARKER.search(toks):
-        return None
-    due, due_text, due_span = _due(state, sentence)
-    names = [p.name.split()[0] for p in state.ctx.directory.people] + \
-        [m[0] for m in mentions(sentence, state.ctx.directory)]
-    cands: list[tuple[int, str | None, bool]] = []  # (offset after cue, owner, needs work verb)
+        return []
+    directory = state.ctx.directory
+    named = mentions(sentence, directory)
+    names = [p.name.split()[0] for p in directory.people] + [m[0] for m in named]
+    # (offset in toks after the cue, owner, needs a verb of work, "we" cue)
+    cands: list[tuple[int, str | None, bool, bool]] = []
     marker = MARKER.search(toks)
     if marker:
         rest = toks[marker.end():]
         owner = None
-        for name, i0, _ in mentions(sentence, state.ctx.directory):
+        for name, i0, _ in named:
             if sentence.token(marker.end()) <= i0:
                 owner = name
                 break
         if re.match(r"i (?:'ll|will) ", rest):
             owner = turn.speaker
-        cands.append((marker.end(), owner, False))
+        cands.append((marker.end(), owner, False, False))
     for pattern, who, weak in ((SELF, "me", False), (LET_ME, "me", False), (OFFER, "me", False),
                                (SELF_WEAK, "me", True), (REQUEST, "you", False),
                                (SECOND, "you", False), (WANT_YOU, "you", False),
                                (SECOND_WEAK, "you!", True), (GROUP_SOMEONE, None, False),
-                               (GROUP_WE, None, True)):
-        m = pattern.search(toks)
-        if not m or _embedded(toks, m.start()):
-            continue
-        if who == "me":
-            cands.append((m.end(), turn.speaker, weak))
-        elif who == "you":
-            named = _addressee(state, k, sentence, strict=True)
-            # "you will" with nobody named is often generic ("you will save batteries")
-            cands.append((m.end(), named or _addressee(state, k, sentence), named is None))
-        elif who == "you!":
-            named = _addressee(state, k, sentence, strict=True)
-            if named:  # "you need to" only counts when said to somebody named
-                cands.append((m.end(), named, True))
-        else:
-            cands.append((m.end(), None, weak))
+                               (GROUP_WE, "we", True)):
+        for m in pattern.finditer(toks):
+            if _embedded(toks, m.start()):
+                continue
+            if re.match(r"(?:be able to|be [a-z]+ing)\b", toks[m.end():]):
+                continue  # "I'll be able to...", "I should be writing this down"
+            if who == "we" and re.search(r"(?:^|\s)(?:maybe|perhaps|probably)\s",
+                                         toks[: m.start() + 1]):
+                continue
+            if who == "me":
+                cands.append((m.end(), turn.speaker, weak, False))
+            elif who == "you":
+                person = _addressee(state, k, sentence, strict=True)
+                # "you will" with nobody named is often generic ("you will save batteries")
+                cands.append((m.end(), person or _addressee(state, k, sentence), person is None,
+                              False))
+            elif who == "you!":
+                person = _addressee(state, k, sentence, strict=True)
+                if person:  # "you need to" only counts when said to somebody named
+                    cands.append((m.end(), person, True, False))
+            elif who == "we":
+                cands.append((m.end(), None, weak, True))
+            else:
+                cands.append((m.end(), None, weak, False))
     # a person named as the subject: "Kim's going to send it", "the designer will look into it"
-    for name, i0, i1 in mentions(sentence, state.ctx.directory):
+    for name, i0, i1 in named:
         off = len(" ".join(t.lower_ for t in sentence.doc[sentence.span.start:i1])) + 1
         if off >= len(toks):
             continue
         tail = re.sub(r"^(?:_ )+|(?<= )_ ", "", toks[off:])  # AMI's "I_D_" splits off a "_"
-        m = THIRD_AFTER.match(tail)
-        if m and not (m.group(0).startswith("to ") and i0 - sentence.span.start > 5
-                      and not marker):
-            owner = turn.speaker if "and i" in m.group(0) else name
-            cands.append((off, owner, False))
-    if not cands and PLEASE.search(toks) and not sentence.is_question:
-        m = PLEASE.search(toks)
-        assert m is not None
-        cands.append((m.end(), _addressee(state, k, sentence), False))
-    cands.sort(key=lambda c: c[0])
-    for offset, owner, need_work in cands:
-        task, verb = _phrase(state, sentence, offset, names, due_span)
-        if verb is None or not task or len(task.split()) < 2:
+        third = THIRD_AFTER.match(tail)
+        if not third or _NOT_PLAN.match(tail[third.end():]):
             continue
+        cue = third.group(0)
+        if cue.startswith("to ") and i0 - sentence.span.start > 5 and not marker:
+            continue
+        if re.search(r"(?:^|\s)(?:but then|then|otherwise|or else)\s*$", toks[: off].rsplit(
+                name.split()[0].lower(), 1)[0]):
+            continue  # "you could, but then Colm has to test it": a consequence, not a task
+        weak = bool(re.match(r"(?:can|could|should|has to|have to|needs to|need to) ", cue))
+        owner = turn.speaker if "and i" in cue else name
+        cands.append((off, owner, weak, False))
+    please = PLEASE.search(toks)
+    if not cands and please and not sentence.is_question:
+        cands.append((please.end(), _addressee(state, k, sentence), False, False))
+    cands.sort(key=lambda c: c[0])
+    found: list[Found] = []
+    used: set[int] = set()
+    starts = [sentence.token(c[0]) for c in cands]
+    for n, (offset, owner, need_work, we) in enumerate(cands):
+        start = starts[n]
+        end = next((st for st in starts[n + 1 :] if st > start), sentence.span.end)
+        due, due_text, due_span = _clause_due(state, sentence, start, end)
+        task, verb = _phrase(state, sentence, offset, names, due_span)
+        if verb is None or verb.i in used or not task or len(task.split()) < 2:
+            continue
+        if verb.i < start or verb.i - start > 8 or verb.i >= end:
+            continue  # the verb is far from the cue, or in the next clause
         if _immediate(task, due, due_text):
             continue
-        if verb.i < sentence.token(offset) or verb.i - sentence.token(offset) > 8:
-            continue  # the verb is far from the cue: another clause
-        lemma = verb.lemma_.lower()
-        if lemma in ("be", "have") and not _work(verb, sentence):
+        pronoun = bool(_PRONOUN_TASK.match(task))
+        if not _work(verb, sentence) and not pronoun:
             continue
-        if not _work(verb, sentence) and not due:
+        verbs = WE_WORK_VERBS if we else WORK_VERBS
+        if need_work and not pronoun and stem(verb.lemma_.lower()) not in {stem(v) for v in verbs}:
             continue
-        if need_work and stem(lemma) not in {stem(v) for v in WORK_VERBS}:
+        if not content_stems(task) and not pronoun:
             continue
-        if len(content_stems(task)) < 1:
+        if found and found[-1].owner == owner and found[-1].task.endswith(task):
             continue
-        return Found(task, owner, due, due_text, sentence.text, lemma)
-    return None
+        used.add(verb.i)
+        clause = sentence.doc[start:end].text
+        found.append(Found(task, owner, due, due_text, clause, verb.lemma_.lower()))
+    return found
 
 
 # --------------------------------------------------------------------------- targets
@@ -299,13 +368,29 @@ def _task_stems(item: ActionItem) -> frozenset[str]:
     return content_stems(item.task)
 
 
+def context_stems(state: State, k: int, sentence: Sentence, turns: int = 2
+                  ) -> tuple[frozenset[str], ...]:
+    """Return content stems of the sentence and of the sentences before it, nearest first."""
+    out = [content_stems(sentence.toks)]
+    mine = state.turns[k]
+    out += [content_stems(s.toks) for s in reversed(mine.sentences[: sentence.number])]
+    for turn in reversed(state.turns[max(k - turns, 0) : k]):
+        out += [content_stems(s.toks) for s in reversed(turn.sentences)]
+    return tuple(x for x in out if x)
+
+
 def target(state: State, now: float, words: frozenset[str], *, verb: str = "",
            prefer_owner: str | None = None, pronoun_ok: bool = True,
-           unassigned_first: bool = False) -> ActionItem | None:
-    """Return the carried open action a remark most likely refers to, or None."""
+           unassigned_first: bool = False, context: tuple[frozenset[str], ...] = ()
+           ) -> ActionItem | None:
+    """Return the carried open action a remark most likely refers to, or None.
+
+    By content first ("the lease is signed"); for a bare "that" or "it", the
+    recent action the last turns talked about, else the one mentioned last.
+    """
     best: tuple[float, ActionItem] | None = None
     recent = state.recent_actions(now, seconds=10 * 3600)
-    for rank, item in enumerate(recent):
+    for item in recent:
         shared = overlap(words, _task_stems(item))
         score = shared
         if verb and item.task.split()[:1] and stem(item.task.split()[0]) == stem(verb):
@@ -316,13 +401,21 @@ def target(state: State, now: float, words: frozenset[str], *, verb: str = "",
             score += 0.1
         age = now - max(e.start for e in item.evidence)
         score += 0.2 * math.exp(-max(age, 0.0) / WINDOW)
-        if shared >= 0.34 or (verb and score >= 0.6):
-            if best is None or score > best[0]:
-                best = (score, item)
+        if shared >= 0.34 and (best is None or score > best[0]):
+            best = (score, item)
     if best is not None:
         return best[1]
     if not pronoun_ok:
         return None
+    if context:  # the last turns name the item ("So the sign-up sheet... would you take that?")
+        talked = [a for a in recent if now - max(e.start for e in a.evidence) <= 6 * WINDOW
+                  and not (unassigned_first and a.owner is not None)]
+        # what the last sentences talked about, the nearest counting most
+        scores = {a.id: sum(len(said & _task_stems(a)) * 0.75 ** n
+                            for n, said in enumerate(context)) for a in talked}
+        ranked = sorted(talked, key=lambda a: (scores[a.id], _last(a)), reverse=True)
+        if ranked and scores[ranked[0].id] > 0:
+            return ranked[0]
     for item in recent:  # "that's done": the item mentioned last, if recent
         age = now - max(e.start for e in item.evidence)
         if age > WINDOW:
@@ -333,6 +426,10 @@ def target(state: State, now: float, words: frozenset[str], *, verb: str = "",
     if unassigned_first:
         return next((a for a in recent if now - max(e.start for e in a.evidence) <= WINDOW), None)
     return None
+
+
+def _last(item: ActionItem) -> float:
+    return max(e.start for e in item.evidence)
 
 
 def _rest_stems(sentence: Sentence, start: int) -> frozenset[str]:
@@ -351,33 +448,48 @@ def read_update(state: State, k: int, sentence: Sentence) -> list[Op]:
     question = sentence.is_question
     # dropping: "let's forget the van"
     m = DROP.search(toks)
+    if m and re.search(r"\bdrop (?:(?:it|that|this|them|him|her) )?(?:in|off|round|by|over|"
+                       r"at)\b", toks):
+        m = None  # "I'll drop it in to their office": delivering, not dropping
     if m and not question:
         what = next(g for g in m.groups() if g)
         words = content_stems(what)
         pronoun = bool(re.match(r"(?:that|it|this|those|them)\b", what.strip()))
-        item = target(state, now, words, pronoun_ok=pronoun)
+        item = target(state, now, words, pronoun_ok=pronoun,
+                      context=context_stems(state, k, sentence) if pronoun else ())
         if item is not None and (words or pronoun):
             return [Update(item.id, Change("dropped", None, ev))]
     # completion: "I already sent it", "that's done"
     m = DONE.search(toks)
-    if m and not question and not re.search(r"\b(?:not|n't|never|if|when|once|until|before)\b",
-                                            toks[: m.end()]):
+    if m and any(isinstance(op, Update) and op.change.kind == "done"
+                 and op.change.evidence.utterance == turn.utterance.index for op in state.ops):
+        m = None  # "It's done. I already sent them.": one completion, said twice
+    if m and not question and not FUTURE.search(toks) and not re.search(
+            r"\b(?:not|n't|never|if|when|once|until|till|before|after)\b", toks[: m.end()]):
         verb = m.group("verb") or ""
         if verb or m.group("state"):
             who = turn.speaker if re.match(r"\s?(?:i|we) ", m.group(0)) else None
             words = _rest_stems(sentence, 0) - {"already", "done", "finish"}
             pronoun = bool(m.group("state")) or re.search(r"\b(?:it|that|this|them)\b",
                                                           toks[m.end(): m.end() + 12]) is not None
-            item = target(state, now, words, verb=verb, prefer_owner=who, pronoun_ok=pronoun)
+            item = target(state, now, words, verb=verb, prefer_owner=who, pronoun_ok=pronoun,
+                          context=context_stems(state, k, sentence))
             if item is not None and (verb == "" or item.task.split()[:1] and (
                     stem(item.task.split()[0]) == stem(verb) or overlap(words, _task_stems(item))
                     >= 0.34 or pronoun)):
-                return [Update(item.id, Change("done", None, ev))]
+                done: list[Op] = [Update(item.id, Change("done", None, ev))]
+                mine = m.group("who") == "i" or any(
+                    re.search(r"(?:^|\s)i (?:'ve |have )?(?:already|just) ", x.toks)
+                    for x in turn.sentences)
+                if item.owner is None and mine:  # "It's done. I already sent them."
+                    done.insert(0, Update(item.id, Change("owner", turn.speaker, ev)))
+                return done
     # taking or reassigning: "I can take that", "actually Kim will do it"
     m = TAKE.search(toks)
     if m:
         who = next((g for g in (m.group("who"), m.group("who2"), m.group("who3"),
-                                m.group("who4"), m.group("who5"), m.group("who6")) if g), "")
+                                m.group("who4"), m.group("who5"), m.group("who6"),
+                                m.group("who7")) if g), "")
         person: str | None
         if who in ("i", "me"):
             person = turn.speaker
@@ -389,19 +501,42 @@ def read_update(state: State, k: int, sentence: Sentence) -> list[Op]:
         reassign = bool(REASSIGN_WORDS.search(toks)) or who not in ("i", "me")
         words = content_stems(m.group("obj")) if m.group("obj") else _rest_stems(sentence, m.end())
         item = target(state, now, words, unassigned_first=not reassign,
-                      pronoun_ok=not m.group("obj"))
+                      pronoun_ok=not m.group("obj"), context=context_stems(state, k, sentence))
         if person and item is not None and item.owner != person and (
                 item.owner is None or reassign):
-            return [Update(item.id, Change("owner", person, ev))]
-    # a new date: "let's push that to next week"
+            ops = [Update(item.id, Change("owner", person, ev))]
+            due, _, _ = _due(state, sentence)
+            if due and (item.due is None or item.due.isoformat() != due):
+                ops.append(Update(item.id, Change("due", due, ev)))
+            return ops
+    # a new date: "let's push that to next week"; the owner naming a date: "I can have them
+    # printed by next Wednesday"
     due, due_text, _ = _due(state, sentence)
-    if due and DUE_CHANGE.search(toks):
+    if due and not question and re.search(r"(?:^|\s)i (?:'ll|will|can|should|could)\s", toks) and \
+            re.search(r"\b(?:it|that|this|them|those)\b", toks):
+        mine = [a for a in state.recent_actions(now, WINDOW) if a.owner == turn.speaker]
+        if mine and mine[0].due is None:
+            return [Update(mine[0].id, Change("due", due, ev))]
+    if due and _due_change(sentence):
         words = _rest_stems(sentence, 0) - content_stems(due_text)
         pronoun = re.search(r"\b(?:that|it|this)\b", toks) is not None
-        item = target(state, now, words, pronoun_ok=pronoun)
+        item = target(state, now, words, pronoun_ok=pronoun,
+                      context=context_stems(state, k, sentence, turns=4))
         if item is not None and (item.due is None or item.due.isoformat() != due):
             return [Update(item.id, Change("due", due, ev))]
     return ops
+
+
+def _due_change(sentence: Sentence) -> bool:
+    """Return True when the sentence moves a date: a verb of moving with a new date."""
+    m = DUE_CHANGE.search(sentence.toks)
+    if not m:
+        return False
+    word = m.group(0).split()[0]
+    if word in ("can", "could", "let", "instead"):
+        return True
+    verbs = [t for t in sentence.span if t.lower_ == word]
+    return any(t.pos_ == "VERB" or t.tag_ == "VB" for t in verbs)
 
 
 def duplicate(state: State, found: Found) -> ActionItem | None:
@@ -413,22 +548,41 @@ def duplicate(state: State, found: Found) -> ActionItem | None:
         if found.owner and item.owner and found.owner != item.owner:
             continue
         same_verb = stem(item.task.split()[0]) == stem(found.task.split()[0])
-        if overlap(words, _task_stems(item)) >= (0.5 if same_verb else 0.8):
+        if similar(words, _task_stems(item), 0.5 if same_verb else 0.8):
             return item
+        verb = stem(found.task.split()[0])
+        if same_verb and found.owner == item.owner and (
+                not words - {verb} or not _task_stems(item) - {verb}):
+            return item  # "Hana's letting him in" restates "let me in", Hana's
     return None
 
 
+_PRONOUN_TASK = re.compile(r"^[a-z-]+ (?:it|that|this)\b", re.I)
+
+
 def new_ops(state: State, k: int, sentence: Sentence, found: Found) -> list[Op]:
-    """Return the operations for a new action: an Add, or updates of its duplicate."""
+    """Return the operations for a new action: an Add, or updates of the item it repeats.
+
+    "Could you get it out before the next meeting?" names no new task: "it" is
+    the action just discussed, which takes the date (and the owner, if it had none).
+    """
     turn = state.turns[k]
     ev = evidence(turn.utterance, found.quote)
     same = duplicate(state, found)
+    if same is None and _PRONOUN_TASK.match(found.task):
+        same = target(state, turn.utterance.start, frozenset(), pronoun_ok=True,
+                      context=context_stems(state, k, sentence))
+        if same is None and not _work_word(found.verb):
+            return []  # "could you get it out?" with nothing to point at: no new task
     if same is not None:
         ops: list[Op] = []
         if found.owner and same.owner is None:
             ops.append(Update(same.id, Change("owner", found.owner, ev)))
         if found.due and (same.due is None or same.due.isoformat() != found.due):
             ops.append(Update(same.id, Change("due", found.due, ev)))
+        if len(content_stems(found.task)) > len(_task_stems(same)) and not \
+                _PRONOUN_TASK.match(found.task):  # "send them some" -> "send the fund photos"
+            ops.append(Update(same.id, Change("task", found.task, ev)))
         return ops
     import datetime as dt
 
@@ -487,8 +641,9 @@ def read(state: State, k: int) -> None:
             state.claim(sentence)
             continue
         found = read_new(state, k, sentence)
-        if found is not None:
-            state.apply(new_ops(state, k, sentence, found))
+        if found:
+            for item in found:
+                state.apply(new_ops(state, k, sentence, item))
             state.claim(sentence)
             continue
         ops = take_from_previous(state, k, sentence)

@@ -32,8 +32,8 @@ FILLER_PHRASES = ("you know", "i mean", "kind of", "sort of", "i guess", "i thin
 TALK_VERBS = frozenset(
     "show tell say explain talk speak start begin continue present repeat mean think guess see "
     "hear know sit stop wait pass hand open close switch plug click move summarise summarize "
-    "recap introduce wrap conclude answer read let be remember imagine suppose assume agree "
-    "disagree ask wonder like love hate want hope need try understand go come leave stay "
+    "recap introduce wrap conclude answer read be remember imagine suppose assume agree "
+    "disagree ask wonder like love hate want hope need try understand go come stay "
     "finish end use put note point add mention describe elaborate clarify argue bet admit "
     "interrupt jump skip turn draw give take look have do get make keep".split()
 )
@@ -45,7 +45,7 @@ WORK_COMPLEMENTS = {
     "get": ("back", "in touch", "hold", "quote", "quotes", "price", "prices", "list", "figures"),
     "have": ("look", "chat", "word", "think"),
     "think": ("about", "over", "through"),
-    "go": ("over", "and"),
+    "go": ("and",),
     "give": ("call", "ring", "update"),
     "put": ("together",),
     "make": ("sure", "list", "call", "booking", "reservation", "copy", "copies"),
@@ -74,7 +74,8 @@ STOP = frozenset(
     "i me my he him his she her be is are was were been am do does did have has had will "
     "would shall should can could may might must not no yes one some any all what which who "
     "whom how why when where as so than too very also just only even still there's that's "
-    "gonna na going get got thing things stuff lot bit way".split()
+    "gonna na going get got thing things stuff lot bit way let after before later soon again "
+    "still already".split()
 ) | FILLER_WORDS
 
 _WORD = re.compile(r"[a-z0-9][a-z0-9'_-]*")
@@ -102,6 +103,17 @@ def stem(word: str) -> str:
 def content_stems(text: str) -> frozenset[str]:
     """Return the stems of the content words of ``text``."""
     return frozenset(stem(w) for w in _WORD.findall(norm(text)) if w not in STOP and len(w) > 2)
+
+
+def similar(a: frozenset[str], b: frozenset[str], share: float = 0.5) -> bool:
+    """Return True when two sets of stems say the same thing: two words shared, or all of one."""
+    common = len(a & b)
+    if not common:
+        return False
+    small = (len(a) == 1 and len(b) <= 2) or (len(b) == 1 and len(a) <= 2)
+    if common < 2 and not (a == b or small):
+        return False
+    return common / min(len(a), len(b)) >= share
 
 
 def overlap(a: frozenset[str], b: frozenset[str]) -> float:
@@ -144,7 +156,7 @@ class Sentence:
 
 def sentences(utterance: Utterance, doc: Doc) -> list[Sentence]:
     """Return the sentences of an utterance's parse (the parser's sentence boundaries)."""
-    out = []
+    out: list[Sentence] = []
     for span in doc.sents:
         text = span.text.strip()
         if not text:
@@ -165,7 +177,7 @@ def evidence(utterance: Utterance, quote: str) -> Evidence:
 # --------------------------------------------------------------------------- verb phrases
 
 _DROP_DEPS = frozenset({"nsubj", "nsubjpass", "expl", "aux", "auxpass", "intj", "parataxis",
-                        "discourse", "meta", "vocative", "cc", "preconj", "mark", "csubj"})
+                        "discourse", "meta", "vocative", "preconj", "mark", "csubj"})
 _CHAIN = frozenset({"go", "gon", "going", "be", "have", "need", "want", "try", "able", "got",
                     "gotta", "wanna", "like", "start", "begin", "plan", "mean", "hope", "will",
                     "let", "would", "should", "could", "can", "may", "might", "must", "shall"})
@@ -188,7 +200,8 @@ def next_verb(span: Span, start: int) -> Token | None:
             continue
         nxt = toks[k + 1].lower_ if k + 1 < len(toks) else ""
         if tok.lemma_.lower() in _CHAIN or low in _CHAIN:
-            if nxt in ("to", "na", "ta", "be", "get", "go", "have") or tok.pos_ == "AUX":
+            if nxt in ("to", "na", "ta", "be", "get", "go", "have") or tok.pos_ == "AUX" or (
+                    tok.lemma_.lower() == "try" and nxt == "and"):
                 continue
             if low in ("gon", "gonna", "wanna", "gotta", "going", "got"):
                 continue
@@ -258,7 +271,7 @@ def clean_phrase(tokens: Sequence[Token], *, drop_chars: Iterable[tuple[int, int
             text = tok.lower_ if k == 0 else tok.text
         words.append(text)
     # edges: no trailing "and", "to", "the"...
-    while words and words[-1].lower() in _EDGE_WORDS | {"the", "a", "an", "of", "on", "in", "at"}:
+    while words and words[-1].lower() in _EDGE_WORDS | {"the", "a", "an", "of", "like"}:
         words.pop()
     while words and words[0].lower() in _EDGE_WORDS - {"to"}:
         words.pop(0)
@@ -268,6 +281,7 @@ def clean_phrase(tokens: Sequence[Token], *, drop_chars: Iterable[tuple[int, int
             words.pop()
     text = " ".join(words)
     text = re.sub(r" (n't|'s|'re|'ll|'ve|'d|'m)\b", r"\1", text)
+    text = re.sub(r"(\w) - (\w)", r"\1-\2", text)  # "sign - up" -> "sign-up"
     return text.strip()
 
 
@@ -307,7 +321,8 @@ def tail_tokens(span: Span, verb: Token) -> list[Token]:
 # --------------------------------------------------------------------------- people
 
 
-def mentions(sentence: Sentence, directory: Directory, *, max_words: int = 3) -> list[tuple[str, int, int]]:
+def mentions(sentence: Sentence, directory: Directory, *,
+             max_words: int = 3) -> list[tuple[str, int, int]]:
     """Return (name, first token, end token) of people named in the sentence, in order."""
     toks = list(sentence.span)
     found: list[tuple[str, int, int]] = []
@@ -323,7 +338,8 @@ def mentions(sentence: Sentence, directory: Directory, *, max_words: int = 3) ->
                 continue
             if n == 1 and group[0].pos_ not in ("PROPN", "NOUN", "X") and not word[:1].isupper():
                 continue
-            person = directory.resolve(" ".join(t.text for t in group)) if directory.people else None
+            said = " ".join(t.text for t in group)
+            person = directory.resolve(said) if directory.people else None
             if person is not None:
                 hit = (person.name, group[0].i, group[-1].i + 1)
                 break

@@ -22,11 +22,12 @@ from .clauses import (
     overlap,
     verb_phrase,
 )
-from .ledger import Add, Op, Update
+from .ledger import Add, Update
 from .state import State, Turn
 
 EXPLICIT = re.compile(
-    r"(?:^|\s)we (?:'ve |have |all |just )?(?:decided|agreed|settled|concluded) (?:on |to |that |upon |"
+    r"(?:^|\s)we (?:'ve |have |all |just )?(?:decided|agreed|settled|concluded) (?:on |to |"
+    r"that |upon |"
     r"we 'd |we 'll |we would |we will |we 're going to |we 're gon na )?"
     r"|(?:^|\s)(?:the |our |final )?decision (?:is|was|'s) (?:to |that |we )?"
     r"|(?:^|\s)we (?:'re|are) (?:going|gon na) (?:to )?(?:go )?(?:with|for) "
@@ -34,9 +35,11 @@ EXPLICIT = re.compile(
     r"|(?:^|\s)we (?:'re|are) (?:sticking|going to stick|gon na stick|settling) (?:with|on|for) "
     r"|(?:^|\s)we (?:'ve|have) (?:gone|opted|gone ahead) (?:with|for) "
     r"|(?:^|\s)we (?:'ve|have) (?:got|chosen|picked|selected) (?=the |a |an )"
-    r"|(?:^|\s)(?:it 's|it is|that 's|that is) (?:been )?(?:decided|agreed|settled) (?:that |then |on )?"
-    r"|(?:^|\s)we (?:'ll|will) (?:go ahead and |definitely )?(?:use|have|include|keep|take) (?=the |a |an )"
-    r"|(?:^|\s)so (?:it 's|it is|it 'll be|it will be|that 's) (?:going to be |gon na be )?(?=the |a |an )"
+    r"|(?:^|\s)(?:it 's|it is|that 's|that is) (?:been )?(?:decided|agreed|settled) (?:that |"
+    r"then |on )?"
+    r"|(?:^|\s)we (?:'ll|will) (?:go ahead and |definitely )?(?:use|have|include|keep|"
+    r"take) (?=the |a |an )"
+    r"|(?:^|\s)so (?:it 's|it is|it 'll be|it will be) (?:going to be |gon na be )(?=the |a |an )"
 )
 # an explicit "agreed", "that's settled": settles the proposal on the table
 SETTLES = re.compile(
@@ -51,21 +54,42 @@ PROPOSAL = re.compile(
     r"|(?:^|\s)why do n't we (?:just )?"
     r"|(?:^|\s)i (?:would |'d )?(?:suggest|propose|recommend|move) (?:that )?(?:we )?"
     r"|(?:^|\s)maybe we (?:should|could|can) "
-    r"|(?:^|\s)(?:i think |perhaps |so )?we (?:should|could|might|can) (?:maybe |probably |perhaps |"
-    r"also |just |definitely |all )?(?=go |use |have |do |make |get |include |put |keep |take |try |"
+    r"|(?:^|\s)(?:i think |perhaps |so )?we (?:should|could|might) (?:maybe |probably |perhaps |"
+    r"also |just |definitely |all )?(?=go |use |have |do |make |get |include |put |keep |take |"
+    r"try |"
     r"add |choose |pick |stick |offer |hold |move |set |fix |cut |drop |change |switch |buy |hire |"
     r"order |book |sell |aim |target |focus |limit |charge |price |launch |run )"
-    r"|(?:^|\s)let 's (?:just |maybe |all )?(?!see|start|move|look|talk|go (?:on|back|through|over|"
-    r"ahead)|say|get (?:started|going|on)|begin|continue|think|wait|stop|hear|have a (?:look|break)|"
+    r"|(?:^|\s)what if we "
+    r"|(?:^|\s)let 's (?:, let 's )?(?:just |maybe |all )?+(?!not |, |hope|hold|make a start|"
+    r"get back|"
+    r"crack on|kick off|see|start|move|look|talk|go (?:on|back|through|over|"
+    r"ahead)|say|get (?:started|going|on)|begin|continue|think|wait|stop|hear|have a (?:look|"
+    r"break)|"
     r"finish|wrap|recap|summarise|summarize|do (?:this|that) quickly|check|come back|leave|skip|"
     r"take a (?:look|break|minute|second)|keep going|carry on|turn|break)"
     r"|(?:^|\s)do we (?:want|agree|all agree|need) to "
-    r"|(?:^|\s)(?:are we|is everyone|is everybody|everyone|everybody) (?:all )?(?:happy|okay|ok|agreed|"
+    r"|(?:^|\s)(?:are we|is everyone|is everybody|everyone|everybody) (?:all )?(?:happy|okay|ok|"
+    r"agreed|"
     r"fine|good|alright|all right|in agreement) (?:with|to|on|that) "
     r"|(?:^|\s)are we (?:going|gon na) (?:to )?(?:go )?(?:with|for) "
-    r"|(?:^|\s)(?:we 'll|we will|we 're going to|we 're gon na|we are going to) (?:use|have|include|"
+    r"|(?:^|\s)(?:we 'll|we will|we 're going to|we 're gon na|we are going to) (?:use|have|"
+    r"include|"
     r"keep|make it|go for|offer|sell|put|add|stick|limit|target|focus|aim|charge) "
 )
+# what the thing under discussion must be: "the remote should be simple", "it has to be soft";
+# with a pronoun subject only the modals of obligation count ("it'll be cleaner" is a guess)
+REQUIREMENT = re.compile(
+    r"(?:^|\s)(?P<np>the [a-z_-]+(?: [a-z_-]+)?|our [a-z_-]+(?: [a-z_-]+)?) (?:should|must|has to|"
+    r"have to|will|'ll|'s going to|'s gon na|is going to|is gon na|needs to|need to|should n't|"
+    r"must n't|wo n't|will not|can not|ca n't) (?=[a-z])"
+    r"|(?:^|\s)(?P<pn>it|this|that|they) (?:should|must|has to|have to|needs to|need to|should n't|"
+    r"must n't) (?=[a-z])"
+)
+HEDGED = re.compile(r"(?:^|\s)(?:maybe|might|probably|perhaps|possibly|i guess|i suppose|not sure|"
+                    r"i do n't know|i wonder|otherwise|unless|or something)(?:\s|$)")
+SUBORDINATE = re.compile(r"(?:^|\s)(?:if|since|because|'cause|cause|when|whether|so that|"
+                         r"as long as|"
+                         r"even though|although|which|where|how|what|that you|than)\s")
 AGREE = re.compile(
     r"^(?:(?:um|uh|oh|well|so|mm|hmm|okay|ok) ,? )*(?:yeah|yes|yep|yup|yeah yeah|sure|definitely|"
     r"absolutely|exactly|fine|sounds good|sounds great|sounds fine|sounds like a plan|good idea|"
@@ -75,46 +99,53 @@ AGREE = re.compile(
     r"that 'd be good|let 's do (?:it|that)|i like that|i like it|i think so|i 'd go with that|"
     r"i 'm for that|same here|me too|i 'm in)\b"
 )
-AGREE_STRONG = re.compile(r"^(?:(?:um|uh|oh|well|so|mm|okay) ,? )*(?:okay|ok|alright|all right|right)"
+AGREE_STRONG = re.compile(r"^(?:(?:um|uh|oh|well|so|mm|okay) ,? )*(?:okay|ok|alright|all right|"
+                          r"right)"
                           r" ?[.!]?$")
 HEDGE = re.compile(r"\b(?:but|though|however|although|not sure|unless|depends)\b")
 REJECT = re.compile(
-    r"^(?:(?:um|uh|oh|well|hmm|mm) ,? )*(?:no\b|nope|nah|i do n't think so|i 'm not sure|not really|"
-    r"i disagree|i 'd rather not|i do n't agree|i do n't know|i do n't like|not (?:a good|the best)|"
+    r"^(?:(?:um|uh|oh|well|hmm|mm) ,? )*(?:no\b|nope|nah|i do n't think so|i 'm not sure|"
+    r"not really|"
+    r"i disagree|i 'd rather not|i do n't agree|i do n't know|i do n't like|not (?:a good|"
+    r"the best)|"
     r"that wo n't work|that will not work|i would n't|i would rather|i 'd rather|i prefer|"
     r"we ca n't|we can not|we should n't|let 's not|too (?:expensive|much|risky))"
 )
+# talk verbs that can still carry a decision ("let's use the red one", "we'll keep it")
+DECIDING_VERBS = frozenset("go use have keep make take get put do add give try".split())
 WINDOW_TURNS = 4
 WINDOW_SECONDS = 45.0
 
 
-def _text_after(sentence: Sentence, offset: int) -> str:
+def _text_after(sentence: Sentence, offset: int, *, talk: bool = True) -> str:
     """Return the clean phrase after a cue: its verb phrase, or the words that follow."""
     start = sentence.token(offset)
     phrase, verb = verb_phrase(sentence.span, start)
     if verb is not None and verb.i - start <= 2 and len(phrase.split()) >= 2:
-        if verb.lemma_.lower() in TALK_VERBS - {"go", "use", "have", "keep", "make", "take", "get",
-                                                   "put", "do", "add", "give", "try"}:
+        if talk and verb.lemma_.lower() in TALK_VERBS - DECIDING_VERBS:
             return ""
         return phrase
     toks = [t for t in sentence.span if t.i >= start]
     return clean_phrase(toks, lemmatise_first=False)
 
 
-def _whole(sentence: Sentence) -> str:
-    return clean_phrase(list(sentence.span), lemmatise_first=False, max_words=24)
+def _clause_from(sentence: Sentence, offset: int) -> str:
+    """Return the clean words of the sentence from ``offset`` of its tokens on."""
+    start = sentence.token(offset + (1 if sentence.toks[offset:offset + 1] == " " else 0))
+    toks = [t for t in sentence.span if t.i >= start]
+    return clean_phrase(toks, lemmatise_first=False, max_words=20)
 
 
 _VERB_IN_CUE = re.compile(r"(?:go|going|gone|stick|sticking|settle|settling|opted|use|have|include|"
                           r"keep|take) (?:with |for |on )?$")
 
 
-def _decision_text(sentence: Sentence, offset: int, cue: str = "") -> str:
+def _decision_text(sentence: Sentence, offset: int, cue: str = "", *, talk: bool = True) -> str:
     m = _VERB_IN_CUE.search(cue)
     if m:  # "let's go with the red one": keep "go with" in the text
         offset = offset - len(cue) + m.start()
-    text = _text_after(sentence, offset)
-    if len(content_stems(text)) < 1:
+    text = _text_after(sentence, offset, talk=talk)
+    if len(content_stems(text)) < 1 or len(text.split()) < 2:
         return ""
     return capitalise(text)
 
@@ -129,9 +160,7 @@ def agrees(turn: Turn) -> bool:
     head = " ".join(first.split()[:8])
     if HEDGE.search(head):
         return False
-    if len(turn.sentences) > 1 and REJECT.search(turn.sentences[1].toks):
-        return False
-    return True
+    return not (len(turn.sentences) > 1 and REJECT.search(turn.sentences[1].toks))
 
 
 def rejects(turn: Turn) -> bool:
@@ -202,7 +231,7 @@ def read(state: State, k: int) -> None:
         m = EXPLICIT.search(toks)
         if m and not sentence.is_question and not re.search(r"(?:^|\s)(?:if|whether|not|n't)\s",
                                                              toks[: m.start() + 1]):
-            text = _decision_text(sentence, m.end(), m.group(0))
+            text = _decision_text(sentence, m.end(), m.group(0), talk=False)
             ev = evidence(turn.utterance, sentence.text)
             pending = _matching_proposal(state, text, now) if text else None
             if pending is None and not text:
@@ -220,10 +249,20 @@ def read(state: State, k: int) -> None:
                 state.claim(sentence)
                 continue
         m = PROPOSAL.search(toks)
+        if m and SUBORDINATE.search(toks[: m.start() + 1]):
+            m = None  # "if we're gonna put in more technology, ..."
+        text = ""
         if m:
             text = _decision_text(sentence, m.end(), m.group(0))
-            if text and len(content_stems(text)) >= 1 and _duplicate(state, text, now) is None \
-                    and _matching_proposal(state, text, now) is None:
-                ev = evidence(turn.utterance, sentence.text)
-                state.apply([Add(Proposal("", text, turn.speaker, ev.start, (ev,)))])
-                state.claim(sentence)
+        else:
+            m = REQUIREMENT.search(toks)
+            if m and (HEDGED.search(toks) or SUBORDINATE.search(toks[: m.start() + 1])
+                      or sentence.is_question):
+                m = None
+            if m:  # the whole clause: "The feel of the material has to be spongy"
+                text = capitalise(_clause_from(sentence, m.start()))
+        if m and text and content_stems(text) and _duplicate(state, text, now) is None \
+                and _matching_proposal(state, text, now) is None:
+            ev = evidence(turn.utterance, sentence.text)
+            state.apply([Add(Proposal("", text, turn.speaker, ev.start, (ev,)))])
+            state.claim(sentence)

@@ -21,20 +21,29 @@ TAG = re.compile(
     r"sorry|pardon|really|what)\s*\?\s*$"
 )
 NOT_TO_GROUP = re.compile(
-    r"^(?:(?:um|uh|so|and|but|oh|okay|well) )*(?:sorry|pardon|what \?|how are you|can you (?:see|hear)|"
-    r"is that (?:right|okay|ok|it)|are you (?:okay|ok|there|done|ready|with me)|did you (?:say|mean)|"
-    r"do you mean|you mean|what do you mean|what was that|who 's next|shall i (?:start|go|continue)|"
+    r"^(?:(?:um|uh|so|and|but|oh|okay|well) )*(?:sorry|pardon|what \?|how are you|"
+    r"can you (?:see|hear)|"
+    r"is that (?:right|okay|ok|it)|are you (?:okay|ok|there|done|ready|with me)|did you (?:say|"
+    r"mean)|"
+    r"do you mean|you mean|what do you mean|what was that|who 's next|shall i (?:start|go|"
+    r"continue)|"
     r"can i (?:just )?(?:ask|say|interrupt|start)|may i|where was i|where were we|is it on|"
     r"what time|any (?:questions|comments|thoughts)|(?:yeah|no|right|what) \?)"
 )
 WONDER = re.compile(r"(?:^|\s)(?:i wonder (?:if|whether|what|how|why|who)|does anyone know|"
-                    r"do we know|we need to (?:find out|figure out|work out) (?:whether|if|what|how|who))\b")
+                    r"do we know|we need to (?:find out|figure out|work out) (?:whether|if|what|"
+                    r"how|who))\b")
 NON_ANSWER = re.compile(
     r"^(?:(?:um|uh|well|hmm|mm|oh) ,? )*(?:i do n't know|dunno|no idea|not sure|i 'm not sure|"
     r"good question|who knows|i have no idea|we 'll (?:have to )?(?:see|check|find out)|"
     r"i 'll (?:have to )?(?:check|find out)|i ca n't remember|i forget|that 's a good question|"
     r"i was (?:going to|gon na) ask|i wondered that too|i 'm wondering)"
 )
+LATER = re.compile(r"(?:^|\s)(?:i 'd have to|i 'll have to|i would have to|i 'd need to|"
+                   r"i 'll need to|"
+                   r"i do n't (?:actually |really )?know|not sure|let me check|i can check|"
+                   r"i can find out|i 'll find out|i 'll check|i 'll look|"
+                   r"we 'd have to check|we 'll have to check|no one knows|nobody knows)\b")
 LATER_CUE = re.compile(r"\b(?:to answer|about (?:the|your|that) question|the answer is|"
                        r"turns out|i checked|i found out|we found out|regarding|as for|i looked)\b")
 IMMEDIATE_TURNS = 3
@@ -51,6 +60,8 @@ def is_group_question(sentence: Sentence) -> bool:
     words = [w for w in toks.split() if w not in ("?", ",", ".")]
     if len(words) < 4 or TAG.search(toks) or NOT_TO_GROUP.search(toks):
         return False
+    if not any(t.pos_ in ("VERB", "AUX") for t in sentence.span):
+        return False  # "East of the river?": a fragment that adds to the question before
     return len(content_stems(toks)) >= 2
 
 
@@ -59,6 +70,9 @@ ANSWER_START = re.compile(
     r"i think|i believe|it 's|it is|they 're|they are|about|around|roughly|because|we (?:have|'ve|"
     r"can|could|should)|that 's|there 's|there are|you can|you could|i would|i 'd|not)\b"
 )
+PROPOSING = re.compile(r"^(?:(?:um|uh|well|so|okay|right) ,? )*(?:let 's|shall we|should we|"
+                       r"how about|"
+                       r"what about|moving on|next|anyway)\b")
 ANSWER_ENTS = frozenset({"MONEY", "CARDINAL", "DATE", "TIME", "PERCENT", "QUANTITY", "PERSON",
                          "ORG", "GPE"})
 
@@ -68,7 +82,10 @@ def _answer_kind(turn: Turn, question: frozenset[str]) -> str:
     if not turn.sentences:
         return ""
     first = turn.sentences[0]
-    if NON_ANSWER.search(first.toks):
+    if len(turn.sentences) > 1 and not content_stems(first.toks):
+        first = turn.sentences[1]  # "Hm. The system has postcodes..."
+    said_lead = " ".join(s.toks for s in turn.sentences[:3])
+    if NON_ANSWER.search(first.toks) or LATER.search(said_lead):
         return "non-answer"
     if first.is_question and len(turn.sentences) == 1:
         return ""  # a question back is not an answer
@@ -77,6 +94,10 @@ def _answer_kind(turn: Turn, question: frozenset[str]) -> str:
         return "answer"
     if any(ent.label_ in ANSWER_ENTS for ent in first.span.ents):
         return "answer"
+    lead = " ".join(s.toks for s in turn.sentences[:2] if not s.is_question)
+    words = [w for w in lead.split() if w[:1].isalnum() or "'" in w]
+    if len(words) >= 3 and not first.is_question and not PROPOSING.search(first.toks):
+        return "answer"  # a statement in reply: take it as the answer
     return ""
 
 
@@ -119,8 +140,9 @@ def read(state: State, k: int) -> None:
         first = ""
         for reply in replies:
             first = _answer_kind(reply, q_words)
-            if first or any(s.is_question for s in reply.sentences):
-                break  # answered, or a new question takes the floor
+            short_back = all(s.is_question and len(s.toks.split()) <= 5 for s in reply.sentences)
+            if first or (any(s.is_question for s in reply.sentences) and not short_back):
+                break  # answered, or a new question takes the floor ("When's opening?" does not)
         if first == "answer":
             continue
         text = capitalise(clean_phrase(list(sentence.span), lemmatise_first=False, max_words=30))

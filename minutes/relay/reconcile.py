@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from ..model import ActionItem, Change, Decision, Ledger, Question
-from .clauses import content_stems, overlap, stem
+from .clauses import content_stems, overlap, similar, stem
 from .context import ReadContext
 
 
@@ -16,7 +16,7 @@ def _same_action(a: ActionItem, b: ActionItem) -> bool:
         return False
     same_verb = a.task.split()[:1] and b.task.split()[:1] and \
         stem(a.task.split()[0]) == stem(b.task.split()[0])
-    return overlap(content_stems(a.task), content_stems(b.task)) >= (0.5 if same_verb else 0.8)
+    return similar(content_stems(a.task), content_stems(b.task), 0.5 if same_verb else 0.8)
 
 
 def _merge_action(keep: ActionItem, other: ActionItem) -> ActionItem:

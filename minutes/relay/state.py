@@ -85,7 +85,7 @@ class State:
     def following(self, k: int, *, limit: int = 4, seconds: float = 45.0) -> list[Turn]:
         """Return up to ``limit`` turns after ``k`` within ``seconds``, inside the segment."""
         t0 = self.turns[k].utterance.end
-        out = []
+        out: list[Turn] = []
         for turn in self.turns[k + 1 :]:
             if len(out) >= limit or turn.utterance.start - t0 > seconds:
                 break
