@@ -134,9 +134,10 @@ def _docx_text(path: Path) -> tuple[str, list[str]]:
     return "\n".join([p.text for p in document.paragraphs] + cells + footer), cells
 
 
-def _download(page: Any, selector: str, target: Path) -> Path:
+def _download(page: Any, selector: str, target: Path, name: str) -> Path:
     with page.expect_download() as info:
         page.click(selector)
+    assert info.value.suggested_filename == name
     info.value.save_as(str(target))
     return target
 
@@ -215,7 +216,8 @@ def test_a_clerk_reviews_the_demo_board(browser: Any, board_draft: Path, tmp_pat
         shots(page, "after-reload")
 
         # Export from the page: the Word file holds the edits, not the rejected item.
-        final = _download(page, "#export-form button[data-format=docx]", tmp_path / "f.docx")
+        final = _download(page, "#export-form button[data-format=docx]", tmp_path / "f.docx",
+                          "board-reviewed-draft.docx")
         text, cells = _docx_text(final)
         assert "Dana Whitcombe" in cells
         assert "Rowan Ashdown" in text
@@ -228,7 +230,8 @@ def test_a_clerk_reviews_the_demo_board(browser: Any, board_draft: Path, tmp_pat
 
         # Approved: the DRAFT marking goes.
         page.fill("#approved-on", "2026-11-11")
-        approved = _download(page, "#export-form button[data-format=md]", tmp_path / "f.md")
+        approved = _download(page, "#export-form button[data-format=md]", tmp_path / "f.md",
+                             "board-final.md")
         markdown = approved.read_text(encoding="utf-8")
         assert "Approved on 2026-11-11" in markdown and "DRAFT" not in markdown
         assert "Rowan Ashdown" in markdown

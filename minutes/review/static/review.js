@@ -81,7 +81,16 @@
     node.className = "save-status" + (kind ? " save-" + kind : "");
   }
 
-  async function send(edit) {
+  // Edits go one after another, so replies come back in the order the edits were made.
+  let queue = Promise.resolve();
+
+  function send(edit) {
+    const next = queue.then(() => post(edit));
+    queue = next.catch(() => null);
+    return next;
+  }
+
+  async function post(edit) {
     saving += 1;
     setSaveStatus("Saving…", "busy");
     try {
@@ -634,14 +643,32 @@
 
   // ------------------------------------------------------------------ export
 
-  function exportAs(format) {
+  async function exportAs(format) {
+    await queue; // every edit made so far is in the export
     const approved = $("approved-on").value;
     const query = new URLSearchParams({ format });
     if (approved) query.set("approved_on", approved);
-    const link = el("a", { href: "/api/export?" + query.toString(), download: "" });
+    let response;
+    try {
+      response = await fetch("/api/export?" + query.toString());
+    } catch (err) {
+      setSaveStatus("Export failed: the review server cannot be reached (" + err.message + ")", "error");
+      return;
+    }
+    if (!response.ok) {
+      const payload = await response.json().catch(() => ({}));
+      setSaveStatus("Export failed: " + (payload.error || response.statusText), "error");
+      return;
+    }
+    const disposition = response.headers.get("Content-Disposition") || "";
+    const match = /filename="([^"]+)"/.exec(disposition);
+    const url = URL.createObjectURL(await response.blob());
+    const link = el("a", { href: url, download: match ? match[1] : "minutes." + format });
     document.body.append(link);
     link.click();
     link.remove();
+    setTimeout(() => URL.revokeObjectURL(url), 60000);
+    setSaveStatus("Exported " + (match ? match[1] : format) + (approved ? " (approved " + approved + ")" : " (still a DRAFT)"), "ok");
   }
 
   // ------------------------------------------------------------------ start
