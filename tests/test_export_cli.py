@@ -199,3 +199,18 @@ def test_review_on_a_port_in_use_fails(tmp_path: Path) -> None:
         result = _run("review", str(write_sample(tmp_path)), "--port", str(port), "--no-open")
     assert result.exit_code == 1
     assert f"cannot listen on 127.0.0.1:{port}" in result.output
+
+
+def test_an_unreviewed_demo_draft_exports_as_the_draft_itself(tmp_path: Path) -> None:
+    # The round trip through JSON loses nothing a renderer uses: the roster comes back from
+    # the meeting file beside the source, so seconders are recorded as the draft has them.
+    from minutes.pipeline import draft
+    from minutes.render import render
+
+    minutes = draft(Path(__file__).resolve().parents[1] / "demo_meetings" / "board_regular.vtt")
+    source = tmp_path / "board.json"
+    source.write_bytes(render(minutes, "json"))
+    out = tmp_path / "board.md"
+    result = _run("export", str(source), "-o", str(out), "-q")
+    assert result.exit_code == 0, result.output
+    assert out.read_bytes() == render(minutes, "md")
