@@ -197,7 +197,13 @@ def read_interview(path: Path, profiles: Path | None = None) -> Interview:
                  (directory.role_of(s) or "participant")) for s in transcript.speakers}
     speaking = tuple((s, roles[s]) for s in transcript.speakers)
     participants = tuple(s for s, r in speaking if r != "interviewer")
-    passages = _passages(utterances, parsed.docs, set(interviewers))
+    found = mentions(parsed.docs)
+    # names never make a theme or a keyword (and must not survive pseudonyms as lemmas)
+    names = {w.lower() for m in found for w in m.text.split()}
+    names |= {w.lower() for p in directory.people for n in (p.name, *p.aliases)
+              for w in n.split()}
+    names |= {w.lower() for s in transcript.speakers for w in s.split()}
+    passages = _passages(utterances, parsed.docs, set(interviewers), names)
     if interviewers:
         spans = _question_spans(utterances, parsed.docs, set(interviewers))
     else:  # no interviewer to follow: topic segmentation, as for a meeting
@@ -207,7 +213,7 @@ def read_interview(path: Path, profiles: Path | None = None) -> Interview:
         name=path.name, title=info.title, date=info.date, duration=transcript.duration,
         interviewers=tuple(interviewers), participants=participants, parts=parts,
         passages=passages, speakers=speaking, people=directory.people,
-        mentions=tuple(mentions(parsed.docs)), lowercase=frozenset(lower_words(parsed.docs)),
+        mentions=tuple(found), lowercase=frozenset(lower_words(parsed.docs)),
         places=tuple(places_in(info.place)),
         words=sum(len(u.text.split()) for u in utterances))
 
@@ -271,7 +277,7 @@ def _cue_at(u: Utterance, offset: int) -> Cue | None:
 
 
 def _passages(utterances: Sequence[Utterance], docs: Sequence[Doc],
-              interviewers: set[str]) -> tuple[Passage, ...]:
+              interviewers: set[str], names: set[str]) -> tuple[Passage, ...]:
     out: list[Passage] = []
     run: list[int] = []
 
@@ -284,8 +290,8 @@ def _passages(utterances: Sequence[Utterance], docs: Sequence[Doc],
             cues: list[str] = []
             for i in run:
                 t, p = _terms(docs[i])
-                terms += t
-                phrases += p
+                terms += [w for w in t if w not in names]
+                phrases += [x for x in p if not names & set(x.split())]
                 sentences += _sentences(utterances[i], docs[i])
                 cues += [c.id for c in utterances[i].cues if c.id]
             first, last = utterances[run[0]], utterances[run[-1]]
@@ -584,14 +590,27 @@ def pseudonyms_for(interviews: Sequence[Interview]) -> Pseudonyms:
 
 def pseudonymise(digest: Digest, pseudonyms: Pseudonyms) -> Digest:
     """Return the digest with every name replaced (the records that held names dropped)."""
+    import re
+
     from .pseudonym import replace_strings
 
-    interviews = tuple(replace(replace_strings(replace(iv, mentions=(), people=(),
-                                                       lowercase=frozenset(), places=()),
-                                               pseudonyms))
-                       for iv in digest.interviews)
+    real = {w.lower() for text in pseudonyms.names() for w in re.findall(r"[^\W\d_]+", text)
+            if len(w) > 2 and w.lower() != "the"}
+    interviews = []
+    for n, iv in enumerate(digest.interviews, 1):
+        done = replace_strings(replace(iv, mentions=(), people=(), lowercase=frozenset(),
+                                       places=()), pseudonyms)
+        # a file name such as "sorcha_keane.vtt" hides names from whole-word matching
+        if any(w.lower() in real for w in re.findall(r"[^\W\d_]+", done.name)):
+            stem = "-".join(done.participants) or f"interview-{n:02d}"
+            taken = {other.name for other in digest.interviews}
+            name = f"{stem}{Path(iv.name).suffix}"
+            if name in taken:
+                name = f"{stem}-{n}{Path(iv.name).suffix}"
+            done = replace(done, name=name)
+        interviews.append(done)
     themes = tuple(replace_strings(t, pseudonyms) for t in digest.themes)
-    return replace(digest, interviews=interviews, themes=themes, pseudonymised=True)
+    return replace(digest, interviews=tuple(interviews), themes=themes, pseudonymised=True)
 
 
 # --------------------------------------------------------------------------- output

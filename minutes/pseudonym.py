@@ -251,7 +251,8 @@ def build(speakers: Sequence[tuple[str, str]], people: Sequence[Person],
     for person in people:  # profile people who did not speak here may still be named
         if person.name in by_variant:
             continue
-        kind = "interviewer" if person.role == "interviewer" else "person"
+        kind = {"interviewer": "interviewer", "participant": "participant"}.get(person.role,
+                                                                                "person")
         entry = add(_Entry(person.name, kind))
         for text in (person.name, *person.aliases, *_name_parts(person.name)):
             variant(entry, text)
