@@ -82,6 +82,11 @@ def to_json_dict(minutes: Minutes) -> dict[str, Any]:
         "attendees": [{"name": a.name, "role": a.role, "present": a.present, "kind": a.kind}
                       for a in minutes.attendees],
         "unknown_speakers": list(minutes.unknown_speakers),
+        "roster": None if minutes.roster is None else {
+            "body": minutes.roster.body, "members": list(minutes.roster.members),
+            "officers": [{"office": o, "name": n} for o, n in minutes.roster.officers],
+            "quorum": minutes.roster.quorum, "two_thirds": list(minutes.roster.two_thirds),
+            "record_seconder": minutes.roster.record_seconder},
         "quorum": None if minutes.quorum is None else {
             "present": minutes.quorum.present, "members": minutes.quorum.members,
             "required": minutes.quorum.required, "met": minutes.quorum.met,

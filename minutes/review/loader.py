@@ -261,7 +261,7 @@ def _quorum(f: _Fields) -> Quorum | None:
 
 
 def _roster(f: _Fields) -> Roster | None:
-    # Not written by to_json_dict today; read when a later writer adds it.
+    # Written by to_json_dict since the roster was added; older files have none.
     if f.data.get("roster") is None:
         return None
     r = f.obj("roster")
