@@ -298,9 +298,10 @@ def read_new(state: State, k: int, sentence: Sentence) -> list[Found]:
                 cands.append((m.end(), turn.speaker, weak, False))
             elif who == "you":
                 person = _addressee(state, k, sentence, strict=True)
-                # "you will" with nobody named is often generic ("you will save batteries")
-                cands.append((m.end(), person or _addressee(state, k, sentence), person is None,
-                              False))
+                # "you will" with nobody named is often generic ("you will save batteries");
+                # "can you...?" is a request to whoever is addressed
+                generic = person is None and pattern is not REQUEST
+                cands.append((m.end(), person or _addressee(state, k, sentence), generic, False))
             elif who == "you!":
                 person = _addressee(state, k, sentence, strict=True)
                 if person:  # "you need to" only counts when said to somebody named

@@ -193,11 +193,16 @@ def next_verb(span: Span, start: int) -> Token | None:
     toks = [t for t in span if t.i >= start]
     for k, tok in enumerate(toks):
         low = tok.lower_
-        if tok.pos_ not in ("VERB", "AUX") and not (tok.tag_ == "VB" or tok.dep_ == "ROOT"
-                                                      and tok.pos_ == "NOUN" and k == 0):
+        # right after the cue, the parser's root is the verb even when tagged otherwise
+        # ("could you forward the quote": "forward" comes out as an adverb)
+        root_first = k == 0 and tok.dep_ == "ROOT" and tok.pos_ in ("NOUN", "ADV", "ADJ", "PROPN")
+        if tok.pos_ not in ("VERB", "AUX") and not (tok.tag_ == "VB" or root_first):
             continue
         if tok.dep_ in ("aux", "auxpass") and tok.pos_ == "AUX":
             continue
+        prev = toks[k - 1].lower_ if k else ""
+        if f"{prev} {low}" in FILLER_PHRASES:
+            continue  # "I'll, uh, you know, send it": "you know" is a filler
         nxt = toks[k + 1].lower_ if k + 1 < len(toks) else ""
         if tok.lemma_.lower() in _CHAIN or low in _CHAIN:
             if nxt in ("to", "na", "ta", "be", "get", "go", "have") or tok.pos_ == "AUX" or (

@@ -28,7 +28,8 @@ NOT_TO_GROUP = re.compile(
     r"do you mean|you mean|what do you mean|what was that|who 's next|shall i (?:start|go|"
     r"continue)|"
     r"can i (?:just )?(?:ask|say|interrupt|start)|may i|where was i|where were we|is it on|"
-    r"what time|any (?:questions|comments|thoughts)|(?:yeah|no|right|what) \?)"
+    r"what time|any (?:questions|comments|thoughts)|(?:yeah|no|right|what) \?|"
+    r"(?:can|could|would|will) you (?!tell|say|explain))"
 )
 WONDER = re.compile(r"(?:^|\s)(?:i wonder (?:if|whether|what|how|why|who)|does anyone know|"
                     r"do we know|we need to (?:find out|figure out|work out) (?:whether|if|what|"
