@@ -135,10 +135,10 @@ def _run_dask(func: Callable[[Any], Any], jobs: Sequence[Any], names: list[str],
     results: list[Outcome | None] = [None] * total
     progress(0, total, "")
     try:
-        client = Client(scheduler, timeout=30, set_as_default=False)
+        client = Client(scheduler, timeout=30)
     except (OSError, TimeoutError) as exc:
-        raise MinutesError(f"cannot reach the Dask scheduler at {scheduler} ({exc}); "
-                           "check the address and that the scheduler is running") from exc
+        raise UsageError(f"cannot reach the Dask scheduler at {scheduler} ({exc}); "
+                         "check the address and that the scheduler is running") from exc
     try:
         futures = [client.submit(call, func, n, names[n], job, pure=False)
                    for n, job in enumerate(jobs)]
