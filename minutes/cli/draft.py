@@ -178,6 +178,8 @@ def _draft_one(input: Path, targets: list[tuple[Path, str]], options: object,
                          initial=carried.ledger if carried else None)
     if carried is not None:
         minutes = series_file.settle(minutes, carried)
+    # Render everything before writing anything: a failure leaves no output behind.
+    rendered = [(path, render(minutes, kind)) for path, kind in targets]
     if transcript_out is not None:
         from ..asr import write_vtt
         from ..model import Transcript
@@ -189,11 +191,11 @@ def _draft_one(input: Path, targets: list[tuple[Path, str]], options: object,
     if not targets:
         sys.stdout.buffer.write(render(minutes, stdout_format))
         sys.stdout.flush()
-    for path, kind in targets:
-        write_atomic(path, render(minutes, kind), force=force, inputs=[input])
+    for path, data in rendered:
+        write_atomic(path, data, force=force, inputs=[input])
         if not quiet:
             click.echo(f"wrote {path}", err=True)
-    if carried is not None:  # after the minutes are written: one transaction
+    if carried is not None and series is not None:  # after the minutes: one transaction
         notes = series_file.save(series, minutes, carried)
         if not quiet:
             click.echo(f"series {series}: {len(carried.items)} item(s) carried in; "
