@@ -40,8 +40,7 @@ def guard(func: F) -> F:
             raise click.Abort() from None
         except OSError as exc:  # disk full, permission denied...: not a bug, say what failed
             where = f"{exc.filename}: " if exc.filename else ""
-            raise click.ClickException(f"{where}{exc.strerror or exc}; nothing was written "
-                                       "over") from exc
+            raise click.ClickException(f"{where}{exc.strerror or exc}") from exc
         except Exception as exc:  # a bug: say so plainly, without a traceback
             if os.environ.get("MINUTES_DEBUG"):
                 raise
