@@ -501,7 +501,7 @@ def build(interviews: Sequence[Interview], max_themes: int = MAX_THEMES) -> Dige
 
 
 def _real_name_words(interviews: Sequence[Interview]) -> set[str]:
-    words = set()
+    words: set[str] = set()
     for iv in interviews:
         for m in iv.mentions:
             words.update(w.lower() for w in m.text.split())
@@ -553,7 +553,7 @@ def _cell(interviews: Sequence[Interview], members: Sequence[tuple[int, int]], i
     mine = [interviews[i].passages[k] for j, k in members if j == i]
     if not mine:
         return Cell(0, None)
-    weight = {vocab[j]: float(centre[j]) for j in np.nonzero(centre)[0]}
+    weight = {vocab[int(j)]: float(centre[j]) for j in np.nonzero(centre)[0]}
     best, best_score = None, -1.0
     for passage in mine:
         for quote in passage.sentences:

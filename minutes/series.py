@@ -346,7 +346,7 @@ def load(path: Path, info: MeetingInfo, digest: str) -> Carried:
         else:
             loaded = replace(s.item, id=f"P{len(proposals) + 1}", status="pending",
                              history=history, source="series")
-            proposals.append(loaded)  # type: ignore[arg-type]
+            proposals.append(loaded)
         items[s.id] = loaded
     return Carried(Ledger(actions=tuple(actions), proposals=tuple(proposals)), items,
                    {"A": top["A"] + 1, "P": top["P"] + 1}, digest, ident, later)
@@ -455,7 +455,8 @@ def save(path: Path, minutes: Minutes, carried: Carried) -> tuple[str, ...]:
     here = label(info) or Path(minutes.source).name
     rows: list[tuple[Any, ...]] = []
     seen: set[str] = set()
-    for item in minutes.ledger.actions + minutes.ledger.proposals:  # type: ignore[operator]
+    everything: list[ActionItem | Proposal] = [*minutes.ledger.actions, *minutes.ledger.proposals]
+    for item in everything:
         kind = "action" if isinstance(item, ActionItem) else "proposal"
         carried_in = item.id in carried.items and series_id(item) == item.id
         rows.append(_row(item, kind, carried_in, origin_of(item) if carried_in else here))

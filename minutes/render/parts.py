@@ -172,7 +172,8 @@ def carried_table(minutes: Minutes) -> Block | None:
         here = _here(item)
         last = here[-1].evidence if here else None
         if isinstance(item, ActionItem):
-            text, owner, due, status = item.task, or_dash(item.owner), due_text(item), item.status
+            text, owner, due = item.task, or_dash(item.owner), due_text(item)
+            status: str = item.status
         else:
             text, owner, due = item.text, or_dash(item.by), DASH
             # a carried proposal nobody took up lapses for good (minutes/series.py)
