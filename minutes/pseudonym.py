@@ -205,8 +205,11 @@ def places_in(place: str) -> list[str]:
     out = []
     for part in place.split(","):
         words = _clean(part).split()
-        if words and all(w[:1].isupper() for w in words) and words[0].lower() not in TITLES:
-            out.append(" ".join(words))
+        if not words or not all(w[:1].isupper() for w in words) or words[0].lower() in TITLES:
+            continue
+        if len(words) == 1 and (words[0].lower() in ORG_WORDS or words[0].lower() in PLACE_WORDS):
+            continue  # "Office", "Harbour": what kind of place, not which
+        out.append(" ".join(words))
     return out
 
 
@@ -402,3 +405,29 @@ def replace_strings(value: Any, pseudonyms: Pseudonyms) -> Any:
         return {replace_strings(k, pseudonyms): replace_strings(v, pseudonyms)
                 for k, v in value.items()}
     return value
+
+
+def for_minutes(minutes: Any, people: Sequence[Person] = ()) -> Pseudonyms:
+    """Return pseudonyms for one meeting's minutes: its speakers, profiles and named entities."""
+    from . import nlp
+
+    docs = nlp.parse(minutes.utterances).docs
+    roles = {p.name: p.role for p in people}
+    speakers = [(s, "interviewer" if roles.get(s) == "interviewer" else "participant")
+                for s in dict.fromkeys([u.speaker for u in minutes.utterances]
+                                       + [a.name for a in minutes.attendees])]
+    return build(speakers, people, mentions(docs), lower_words(docs),
+                 places_in(minutes.meeting.place))
+
+
+def pseudonymise_minutes(minutes: Any, pseudonyms: Pseudonyms) -> Any:
+    """Return ``minutes`` with every name replaced, the source file name included."""
+    from pathlib import Path
+
+    done = replace_strings(minutes, pseudonyms)
+    source = Path(minutes.source)
+    words = {w.lower() for text in pseudonyms.names() for w in re.findall(r"[^\W\d_]+", text)
+             if len(w) > 2 and w.lower() != "the"}
+    if any(w.lower() in words for w in re.findall(r"[^\W\d_]+", source.stem)):
+        done = dataclasses.replace(done, source=f"meeting{source.suffix}")
+    return done

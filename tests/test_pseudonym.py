@@ -162,3 +162,27 @@ def test_cli_writes_the_key_only_when_asked_and_renames_telling_files(tmp_path: 
     key = json.loads((tmp_path / "key.json").read_text("utf-8"))
     third = next(r for r in key["pseudonyms"] if r["pseudonym"] == "P03")
     assert third["names"][0] == "Sorcha Keane" and third["kind"] == "participant"
+
+
+def test_draft_pseudonymise_replaces_names_in_the_minutes(tmp_path: Path) -> None:
+    vtt = tmp_path / "mei_lin_call.vtt"
+    vtt.write_text("WEBVTT\n\n1\n00:00:01.000 --> 00:00:05.000\n<v Mei Lin>Tomás, can you send "
+                   "the lease to the agent in Ardlune by Friday?\n\n2\n00:00:06.000 --> "
+                   "00:00:09.000\n<v Tomás Reyes>Yes, I'll send it to Mei by Friday.\n",
+                   encoding="utf-8")
+    (tmp_path / "mei_lin_call.meeting.toml").write_text(
+        'title = "Lease call"\nplace = "Office, Ardlune"\n', encoding="utf-8")
+    out = tmp_path / "m.json"
+    result = CliRunner().invoke(main, ["draft", str(vtt), "-o", str(out), "--pseudonymise",
+                                       "-q"])
+    assert result.exit_code == 0, result.output
+    text = out.read_text("utf-8")
+    assert _leaks(text, {"Mei", "Lin", "Tomás", "Tomas", "Reyes", "Ardlune"}) == {}
+    doc = json.loads(text)
+    assert [u["speaker"] for u in doc["utterances"]] == ["P01", "P02"]
+    assert doc["meeting"]["source"] == "meeting.vtt" and doc["meeting"]["place"] == \
+        "Office, Place 1"
+    assert sorted(p.name for p in tmp_path.iterdir()) == [
+        "m.json", "mei_lin_call.meeting.toml", "mei_lin_call.vtt"]  # no key unless asked
+    result = CliRunner().invoke(main, ["draft", str(vtt), "--key-out", str(tmp_path / "k")])
+    assert result.exit_code == 2 and "--pseudonymise" in result.stderr

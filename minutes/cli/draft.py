@@ -32,6 +32,10 @@ SUFFIX_FORMAT = {".md": "md", ".markdown": "md", ".docx": "docx", ".json": "json
                    "meetings before this one, and save this meeting's outcome into it.")
 @click.option("--profiles", type=click.Path(exists=True, path_type=Path),
               help="Speaker profile file or folder (TOML). Default: as the meeting file says.")
+@click.option("--pseudonymise", "--pseudonymize", "pseudonymise", is_flag=True,
+              help="Replace people's names and places in the minutes with pseudonyms.")
+@click.option("--key-out", type=click.Path(dir_okay=False, path_type=Path),
+              help="With --pseudonymise: write the key linking pseudonyms to real names here.")
 @click.option("--meeting", type=click.Path(path_type=Path),
               help="Meeting file (TOML). Default: NAME.meeting.toml beside the input.")
 @click.option("--date", callback=date_option,
@@ -63,7 +67,8 @@ SUFFIX_FORMAT = {".md": "md", ".markdown": "md", ".docx": "docx", ".json": "json
 @guard
 def draft(inputs: tuple[Path, ...], outputs: tuple[Path, ...], out_dir: Path | None,
           fmt: str | None, series: Path | None, profiles: Path | None,
-          meeting: Path | None, date: dt.date | None, title: str | None, template: str | None,
+          pseudonymise: bool, key_out: Path | None, meeting: Path | None,
+          date: dt.date | None, title: str | None, template: str | None,
           encoding: str | None, engine: str, model: Path | None, threads: int,
           context_tokens: int, max_words: int | None, asr_model: Path | None, beam_size: int,
           language: str, no_vad: bool, asr_threads: int, jobs: int | None, executor: str,
@@ -81,6 +86,11 @@ def draft(inputs: tuple[Path, ...], outputs: tuple[Path, ...], out_dir: Path | N
 
     if executor == "dask" and not scheduler:
         raise click.UsageError("--executor dask needs --scheduler ADDRESS")
+    if key_out is not None and not pseudonymise:
+        raise click.UsageError("--key-out goes with --pseudonymise")
+    if pseudonymise and (len(inputs) > 1 or series is not None):
+        raise click.UsageError("--pseudonymise drafts one meeting at a time, without "
+                               "--series (use 'minutes digest --pseudonymise' for a set)")
     if len(inputs) > 1 and outputs:
         raise click.UsageError("-o names the output of one input; with several inputs "
                                "give --out-dir DIR")
@@ -107,7 +117,7 @@ def draft(inputs: tuple[Path, ...], outputs: tuple[Path, ...], out_dir: Path | N
         if not targets and fmt in ("docx",):
             raise click.UsageError("DOCX cannot go to standard output; give -o FILE.docx")
         _draft_one(inputs[0], targets, options, series, force=force, quiet=quiet,
-                   stdout_format=fmt or "md")
+                   stdout_format=fmt or "md", pseudonymise=pseudonymise, key_out=key_out)
         return
     plan = _plan_outputs(inputs, out_dir, fmt or "md", force=force)
     if series is not None:  # each meeting needs the state the one before it left
@@ -145,7 +155,8 @@ def _plan_outputs(inputs: tuple[Path, ...], out_dir: Path, kind: str,
 
 def _draft_one(input: Path, targets: list[tuple[Path, str]], options: object,
                series: Path | None, *, force: bool, quiet: bool,
-               stdout_format: str = "md") -> None:
+               stdout_format: str = "md", pseudonymise: bool = False,
+               key_out: Path | None = None) -> None:
     """Draft one meeting, write its outputs, and save it to the series when one is given."""
     from ..output import check_target, write_atomic
     from ..pipeline import draft as make_draft
@@ -178,6 +189,19 @@ def _draft_one(input: Path, targets: list[tuple[Path, str]], options: object,
                          initial=carried.ledger if carried else None)
     if carried is not None:
         minutes = series_file.settle(minutes, carried)
+    if pseudonymise:
+        from ..pipeline import meeting_file
+        from ..pseudonym import for_minutes, pseudonymise_minutes
+        from ..speakers import load_profiles
+
+        chosen = (options.profiles  # type: ignore[attr-defined]
+                  or meeting_file(input, options).profiles)  # type: ignore[arg-type]
+        table = for_minutes(minutes, load_profiles(chosen).people if chosen else ())
+        minutes = pseudonymise_minutes(minutes, table)
+        transcript_out = None  # the real transcript would undo the pseudonyms
+        if key_out is not None:
+            check_target(key_out, force=force, inputs=[input])
+            write_atomic(key_out, table.key_json(), force=force, inputs=[input])
     # Render everything before writing anything: a failure leaves no output behind.
     rendered = [(path, render(minutes, kind)) for path, kind in targets]
     if transcript_out is not None:
