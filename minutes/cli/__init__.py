@@ -111,8 +111,9 @@ def main() -> None:
 
 
 
-from . import draft as _draft  # noqa: E402,F401  (registers the command)
-from . import transcribe as _transcribe  # noqa: E402,F401
-from . import series as _series  # noqa: E402,F401
-from . import review as _review  # noqa: E402,F401
+# Each module registers its command on ``main`` when imported.
 from . import digest as _digest  # noqa: E402,F401
+from . import draft as _draft  # noqa: E402,F401
+from . import review as _review  # noqa: E402,F401
+from . import series as _series  # noqa: E402,F401
+from . import transcribe as _transcribe  # noqa: E402,F401

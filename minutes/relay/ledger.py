@@ -96,9 +96,15 @@ class RelayResult:
 
 
 def next_id(ledger: Ledger, kind: type) -> str:
-    """Return the next free id for items of ``kind``."""
-    items = getattr(ledger, FIELD[kind])
-    return f"{PREFIX[kind]}{len(items) + 1}"
+    """Return the next free id for items of ``kind``: one past the highest number in use.
+
+    Counting would do within one meeting, but items carried in from a series keep
+    their own numbers, and a dropped item must never give its id to a new one.
+    """
+    prefix = PREFIX[kind]
+    used = [int(item.id[len(prefix):]) for item in getattr(ledger, FIELD[kind])
+            if item.id.startswith(prefix) and item.id[len(prefix):].isdigit()]
+    return f"{prefix}{max(used, default=0) + 1}"
 
 
 def find(ledger: Ledger, item_id: str) -> Tracked | None:
