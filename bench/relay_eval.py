@@ -274,7 +274,8 @@ def owner_hits(ledger: Ledger, meeting: Meeting) -> tuple[int, int]:
 # --------------------------------------------------------------------------- report
 
 
-def evaluate(names: Sequence[tuple[str, str]] | None = None, *, verbose: bool = True) -> dict:
+def evaluate(names: Sequence[tuple[str, str]] | None = None, *, verbose: bool = True,
+             no_profiles: bool = True) -> dict:
     """Return the figures for the given meetings (all by default), printing a table."""
     rows = []
     for corpus, name in names or all_meetings():
@@ -290,7 +291,7 @@ def evaluate(names: Sequence[tuple[str, str]] | None = None, *, verbose: bool = 
                      [g.text for g in meeting.decisions])
         owners = owner_hits(ledger, meeting) if corpus == "ami" else (0, 0)
         plain_owners = (0, 0)
-        if corpus == "ami":  # the same, with no profiles: owners are channel letters only
+        if corpus == "ami" and no_profiles:  # the same, no profiles: owners are letters only
             plain_owners = owner_hits(run(meeting.transcript, Directory()), meeting)
         rows.append(dict(name=name, corpus=corpus, dec=dec, act=act, bdec=bdec, bact=bact,
                          r1=r1, r1b=r1b, owners=owners, plain_owners=plain_owners,

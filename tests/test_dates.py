@@ -76,8 +76,8 @@ def test_hand_computed_where_dateparser_differs(phrase: str, meeting: dt.date,
 
 
 def test_finds_the_phrase_inside_a_sentence() -> None:
-    date, phrase = resolve_due("So um I'll send the lease back to them by the end of next week, okay?",
-                               WED)
+    said = "So um I'll send the lease back to them by the end of next week, okay?"
+    date, phrase = resolve_due(said, WED)
     assert (date, phrase) == (dt.date(2025, 3, 14), "by the end of next week")
 
 

@@ -123,7 +123,8 @@ DROP = re.compile(
     r"(?: any ?more| after all)?\s*[.!]?$"
     r"|(?:^|\s)no need (?:to|for) (?P<what4>.+)"
 )
-IMMEDIATE = re.compile(r"\b(?:let (?:you|us|them|everyone) go|(?:it|that|this) down|now|"
+IMMEDIATE = re.compile(r"\b(?:walk (?:me|us) through|let (?:you|us|them|everyone) go|"
+                       r"(?:it|that|this) down|now|"
                        r"right now|first|quickly|briefly|here|at the moment|in a minute|"
                        r"in a second|in a sec|real quick|for a second|for a moment|on the board|"
                        r"on the screen|on the whiteboard|for you|with you|to you|you guys)\b")
@@ -390,7 +391,7 @@ def target(state: State, now: float, words: frozenset[str], *, verb: str = "",
     recent action the last turns talked about, else the one mentioned last.
     """
     best: tuple[float, ActionItem] | None = None
-    recent = state.recent_actions(now, seconds=10 * 3600)
+    recent = state.recent_actions(now, seconds=2 * 3600)
     for item in recent:
         shared = overlap(words, _task_stems(item))
         score = shared

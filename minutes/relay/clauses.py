@@ -8,6 +8,7 @@ used for what it does well: finding the verb a cue governs and its subtree.
 
 from __future__ import annotations
 
+import functools
 import re
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
@@ -35,7 +36,7 @@ TALK_VERBS = frozenset(
     "recap introduce wrap conclude answer read be remember imagine suppose assume agree "
     "disagree ask wonder like love hate want hope need try understand go come stay "
     "finish end use put note point add mention describe elaborate clarify argue bet admit "
-    "interrupt jump skip turn draw give take look have do get make keep".split()
+    "interrupt jump skip turn draw give take look have do get make keep prefer decide mind".split()
 )
 # Of the talk verbs, these make an action item when the rest of the phrase says so
 # ("look into", "have a look at the figures", "take care of", "get back to", "do a survey").
@@ -86,6 +87,7 @@ def norm(text: str) -> str:
     return " ".join(text.lower().replace("’", "'").replace("‘", "'").split())
 
 
+@functools.lru_cache(maxsize=65536)
 def stem(word: str) -> str:
     """Return a crude stem of ``word`` so that "sent", "sending" and "send" compare equal."""
     w = word.lower().strip("'")
@@ -100,6 +102,7 @@ def stem(word: str) -> str:
     return w.rstrip("e") if len(w) > 4 else w
 
 
+@functools.lru_cache(maxsize=16384)  # the same sentences are compared many times in a step
 def content_stems(text: str) -> frozenset[str]:
     """Return the stems of the content words of ``text``."""
     return frozenset(stem(w) for w in _WORD.findall(norm(text)) if w not in STOP and len(w) > 2)

@@ -206,7 +206,7 @@ def settle_pending(state: State, k: int) -> None:
 
 def _duplicate(state: State, text: str, now: float) -> Decision | None:
     words = content_stems(text)
-    for decision in state.ledger.decisions:
+    for decision in reversed(state.ledger.decisions[-40:]):
         if now - decision.time < 900 and overlap(words, content_stems(decision.text)) >= 0.7:
             return decision
     return None

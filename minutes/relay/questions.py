@@ -48,6 +48,7 @@ LATER = re.compile(r"(?:^|\s)(?:i 'd have to|i 'll have to|i would have to|i 'd 
 LATER_CUE = re.compile(r"\b(?:to answer|about (?:the|your|that) question|the answer is|"
                        r"turns out|i checked|i found out|we found out|regarding|as for|i looked)\b")
 IMMEDIATE_TURNS = 3
+LATE_SECONDS = 3600.0  # an answer an hour later is not recognised: talk has moved on
 IMMEDIATE_SECONDS = 30.0
 
 
@@ -108,7 +109,7 @@ def read(state: State, k: int) -> None:
     now = turn.utterance.start
     # answers to open questions carried in the ledger or asked earlier in this segment
     for question in state.ledger.open_questions:
-        if turn.speaker == question.asked_by:
+        if turn.speaker == question.asked_by or now - question.time > LATE_SECONDS:
             continue
         asked_at = question.evidence[0].utterance
         if turn.utterance.index <= asked_at:

@@ -1,0 +1,57 @@
+"""Regression floor of the rules reader on the AMI and ICSI dev meetings.
+
+Source: AMI Meeting Corpus (CC BY 4.0; Carletta et al. 2005) and ICSI Meeting
+Corpus (CC BY 4.0; Janin et al. 2003), hand-written summaries whose decision
+and action sentences link to dialogue acts (../shared/evaldata). Scoring and
+the keyword baseline are those of bench/relay_eval.py: an item is right when
+one of its evidence cues is a linked act or within 15 s of one.
+
+Measured at this commit (mean over meetings, all of them):
+  decisions (10 meetings with gold): F1 0.325 (P 0.29, R 0.45); keyword baseline 0.250
+  actions (7 AMI meetings with gold): F1 0.246 (P 0.20, R 0.45); keyword baseline 0.099
+  owner accuracy on matched AMI actions, role profiles: 4 of 4
+These fall short of the issue's targets (0.40); the floors below keep what we have.
+"""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+import pytest
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "bench"))
+
+
+@pytest.fixture(scope="module")
+def figures(evaldata: Path) -> dict:
+    import relay_eval
+
+    relay_eval.EVALDATA = evaldata
+    return relay_eval.evaluate(verbose=False, no_profiles=False)
+
+
+def test_decisions_beat_the_keyword_baseline(figures: dict) -> None:
+    # AMI + ICSI decisions (CC BY 4.0): measured F1 0.325 against baseline 0.250
+    assert figures["meetings_decisions"] == 10
+    assert figures["decisions_f1"] > figures["decisions_base_f1"] + 0.05
+    assert figures["decisions_f1"] >= 0.30
+
+
+def test_actions_beat_the_keyword_baseline(figures: dict) -> None:
+    # AMI actions (CC BY 4.0): measured F1 0.246 against baseline 0.099
+    assert figures["meetings_actions"] == 7
+    assert figures["actions_f1"] > 2 * figures["actions_base_f1"]
+    assert figures["actions_f1"] >= 0.22
+
+
+def test_owners_of_matched_actions(figures: dict) -> None:
+    # AMI roles from speaker_roles_inferred.json as profiles: measured 4 of 4 right
+    assert figures["owner_matched"] >= 3
+    assert figures["owner_accuracy"] >= 0.6
+
+
+def test_decision_texts_overlap_the_gold_sentences(figures: dict) -> None:
+    # ROUGE-1 F (rouge-score) of decision texts vs gold decision sentences: measured 0.249,
+    # the baseline's matching acts 0.162
+    assert figures["rouge1"] > figures["rouge1_base"]
