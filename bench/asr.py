@@ -10,8 +10,8 @@
    median RTF (seconds of work per second of audio) of each and their ratio (target <= 1.10).
 2. Peak memory as length grows: each length runs in a fresh child process per road
    (``ru_maxrss`` of the child), so nothing one run allocated hides in the next. minutes
-   decodes and recognises 10-minute windows, so its peak should stay flat; bare faster-whisper
-   decodes and featurises the whole file, so its peak grows.
+   decodes and recognises 5-minute windows (``--chunk``), so its peak should stay bounded;
+   bare faster-whisper decodes and featurises the whole file, so its peak grows.
 
 Speech is made with espeak-ng (two voices, ``-s 165``) from a script of our own, repeated with
 1.0 s and 2.5 s silences up to each length. Benchmark, not a test: numbers, never pass/fail.
@@ -119,9 +119,9 @@ def _pct(value: float | None) -> str:
     return "n/a" if value is None else f"{100 * value:.1f}%"
 
 
-def child(road: str, path: Path, beam: int, threads: int) -> None:
+def child(road: str, path: Path, beam: int, threads: int, chunk: float) -> None:
     """Run one transcription and print its timings and this process's peak memory as JSON."""
-    options = AsrOptions(beam_size=beam, threads=threads)
+    options = AsrOptions(beam_size=beam, threads=threads, chunk_seconds=chunk)
     t0 = time.perf_counter()
     recognizer = WhisperRecognizer(ensure_model(), threads)
     loaded = time.perf_counter()
@@ -135,9 +135,9 @@ def child(road: str, path: Path, beam: int, threads: int) -> None:
                       "peak_mib": usage.ru_maxrss / 1024, "text": text}))
 
 
-def run_child(road: str, path: Path, beam: int, threads: int) -> dict:
+def run_child(road: str, path: Path, beam: int, threads: int, chunk: float) -> dict:
     out = subprocess.run([sys.executable, __file__, "--child", road, str(path), "--beam",
-                          str(beam), "--threads", str(threads)],
+                          str(beam), "--threads", str(threads), "--chunk", str(chunk)],
                          check=True, capture_output=True, text=True)
     return json.loads(out.stdout.strip().splitlines()[-1])
 
@@ -149,19 +149,21 @@ def duration(path: Path) -> float:
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
-    ap.add_argument("--rtf-minutes", type=float, default=3.0)
+    ap.add_argument("--rtf-minutes", type=float, default=3.0, help="0 skips the RTF runs")
     ap.add_argument("--lengths", default="5,10,20", help="minutes, for the memory runs")
     ap.add_argument("--bare-lengths", default="5,10",
                     help="the lengths bare faster-whisper runs too (its peak grows; saves time)")
     ap.add_argument("--beam", type=int, default=5)
     ap.add_argument("--threads", type=int, default=0)
+    ap.add_argument("--chunk", type=float, default=AsrOptions().chunk_seconds,
+                    help="minutes' window length in seconds")
     ap.add_argument("--repeats", type=int, default=2)
     ap.add_argument("--workdir", type=Path)
     ap.add_argument("--skip-memory", action="store_true")
     ap.add_argument("--child", nargs=2, metavar=("ROAD", "PATH"), help=argparse.SUPPRESS)
     args = ap.parse_args()
     if args.child:
-        child(args.child[0], Path(args.child[1]), args.beam, args.threads)
+        child(args.child[0], Path(args.child[1]), args.beam, args.threads, args.chunk)
         return
 
     workdir = args.workdir or Path(tempfile.mkdtemp(prefix="minutes-bench-asr-"))
@@ -169,11 +171,20 @@ def main() -> None:
     print(f"cores usable: {len(os.sched_getaffinity(0))}  load average before: "
           f"{' '.join(f'{x:.2f}' for x in os.getloadavg())}")
     parts = make_parts(workdir)
-    options = AsrOptions(beam_size=args.beam, threads=args.threads)
+    options = AsrOptions(beam_size=args.beam, threads=args.threads, chunk_seconds=args.chunk)
     print(f"settings: int8, beam {args.beam}, language en, VAD on, word timestamps on, "
-          f"threads {args.threads or 'all'}")
+          f"threads {args.threads or 'all'}; minutes' windows {args.chunk:g} s")
 
-    # 1. side by side, one process, one model
+    if args.rtf_minutes > 0:
+        side_by_side(args, parts, options, workdir)
+    if not args.skip_memory:
+        memory(args, parts, workdir)
+    print(f"\nload average after: {' '.join(f'{x:.2f}' for x in os.getloadavg())}")
+
+
+def side_by_side(args: argparse.Namespace, parts: list[tuple[np.ndarray, str]],
+                 options: AsrOptions, workdir: Path) -> None:
+    """Print the RTF of both roads on one file, alternating, with one loaded model."""
     path = workdir / "rtf.wav"
     script = make_file(parts, args.rtf_minutes, path)
     length = duration(path)
@@ -199,24 +210,26 @@ def main() -> None:
     print(f"  ratio minutes/bare: best {min(times['minutes']) / min(times['bare']):.3f}  "
           f"median {statistics.median(times['minutes']) / statistics.median(times['bare']):.3f}")
 
-    if not args.skip_memory:
-        print("\npeak memory, one fresh child process per run (model load included):")
-        print(f"  {'length':>8s} {'road':8s} {'peak MiB':>9s} {'RTF':>6s} {'cores':>6s} "
-              f"{'WER':>6s}")
-        for minutes in (float(x) for x in args.lengths.split(",")):
-            path = workdir / f"long{minutes:g}.wav"
-            script = make_file(parts, minutes, path)
-            length = duration(path)
-            roads = ["minutes"]
-            if minutes in {float(x) for x in args.bare_lengths.split(",") if x}:
-                roads.append("bare")
-            for road in roads:
-                r = run_child(road, path, args.beam, args.threads)
-                print(f"  {length / 60:6.1f} m {road:8s} {r['peak_mib']:9.0f} "
-                      f"{r['work_s'] / length:6.3f} {r['cpu_s'] / r['work_s']:6.2f} "
-                      f"{_pct(wer(script, r['text'])):>6s}", flush=True)
-            path.unlink()
-    print(f"\nload average after: {' '.join(f'{x:.2f}' for x in os.getloadavg())}")
+
+
+def memory(args: argparse.Namespace, parts: list[tuple[np.ndarray, str]], workdir: Path) -> None:
+    """Print each road's peak memory, one fresh child process per length."""
+    print("\npeak memory, one fresh child process per run (model load included):")
+    print(f"  {'length':>8s} {'road':8s} {'peak MiB':>9s} {'RTF':>6s} {'cores':>6s} "
+          f"{'WER':>6s}")
+    for minutes in (float(x) for x in args.lengths.split(",")):
+        path = workdir / f"long{minutes:g}.wav"
+        script = make_file(parts, minutes, path)
+        length = duration(path)
+        roads = ["minutes"]
+        if minutes in {float(x) for x in args.bare_lengths.split(",") if x}:
+            roads.append("bare")
+        for road in roads:
+            r = run_child(road, path, args.beam, args.threads, args.chunk)
+            print(f"  {length / 60:6.1f} m {road:8s} {r['peak_mib']:9.0f} "
+                  f"{r['work_s'] / length:6.3f} {r['cpu_s'] / r['work_s']:6.2f} "
+                  f"{_pct(wer(script, r['text'])):>6s}", flush=True)
+        path.unlink()
 
 
 if __name__ == "__main__":

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import gc
 import importlib.util
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -31,7 +32,7 @@ class AsrOptions:
     vad: bool = True  # skip silence with Silero VAD (bundled with faster-whisper)
     word_timestamps: bool = True  # needed to end cues and utterances at pauses
     threads: int = 0  # 0: every core this process may use
-    chunk_seconds: float = 600.0  # audio decoded and recognised at a time (bounds memory)
+    chunk_seconds: float = 300.0  # audio decoded and recognised at a time: bounds memory
     pause_seconds: float = 0.8  # a longer silence between words ends an utterance
     speakers: SpeakerMode = "one"  # "pauses": alternate two labels at long silences (a guess)
     turn_pause_seconds: float = 2.0  # the silence that "pauses" takes for a change of speaker
@@ -44,7 +45,7 @@ class AsrOptions:
         if self.threads < 0:
             raise UsageError(f"threads must be 0 (all cores) or more, not {self.threads}")
         if self.chunk_seconds < 5:
-            raise UsageError(f"chunk seconds must be 5 or more (600 is a good choice), "
+            raise UsageError(f"chunk seconds must be 5 or more (300 is a good choice), "
                              f"not {self.chunk_seconds}")
         if self.pause_seconds <= 0 or self.turn_pause_seconds <= 0:
             raise UsageError("pause lengths must be more than 0 seconds")
@@ -120,6 +121,10 @@ def transcribe(path: Path | str, options: AsrOptions | None = None,
             tell(window.start + min(span.end, length))
         prompt = " ".join(" ".join(texts).split())[-PROMPT_CHARS:] or None
         tell(window.end)
+        # Drop this window's samples and the recogniser's buffers before the next is decoded:
+        # otherwise two windows' worth of arrays are alive at the peak.
+        del window, result
+        gc.collect()
 
     if report.decoded_seconds == 0:
         raise InputError("no audio could be decoded from the audio stream; the file may be "
