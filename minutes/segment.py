@@ -24,8 +24,9 @@ phrases (TF-IDF over segments), e.g. "Warehouse lease and moving date".
 from __future__ import annotations
 
 import math
+import re
 from collections import Counter
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Collection, Sequence
 from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING
 
@@ -126,6 +127,10 @@ def segment(
 # then join neighbours that discuss the same item.
 AGENDA_GRANULARITY = -0.5
 AGENDA_MIN_DURATION = 45.0
+# Cohesion boundaries this close (seconds) to a spoken transition give way to it.
+CUE_CLEARANCE = 30.0
+# Added to the match of a part that opens with a spoken move to the item ("Item four").
+CUE_BONUS = 1.0
 
 
 def _agenda_groups(utterances: Sequence[Utterance], gaps: Gaps, lemmas: Sequence[Sequence[str]],
@@ -135,9 +140,16 @@ def _agenda_groups(utterances: Sequence[Utterance], gaps: Gaps, lemmas: Sequence
     fine = replace(options, granularity=min(options.granularity, AGENDA_GRANULARITY),
                    min_duration=min(options.min_duration, AGENDA_MIN_DURATION))
     starts = _boundaries(utterances, gaps, fine)
+    cues, deferred = transitions(utterances, agenda)
+    opened = {c.utterance: c.item for c in cues}
+    if opened:
+        # a spoken move to an item is a surer boundary than a cohesion valley beside it
+        starts = sorted({0, *opened} | {s for s in starts if all(
+            abs(utterances[s].start - utterances[c].start) >= CUE_CLEARANCE for c in opened)})
     parts = [_make(n, utterances, a, b - 1) for n, (a, b) in
              enumerate(zip(starts, starts[1:] + [len(utterances)], strict=True))]
-    items = align(parts, lemmas, agenda)
+    items = align(parts, lemmas, agenda, opened=[opened.get(p.first) for p in parts],
+                  deferred=deferred)
     groups: list[tuple[int, int | None]] = []
     for start, item in zip(starts, items, strict=True):
         if groups and (item is None or item == groups[-1][1]):
@@ -147,6 +159,12 @@ def _agenda_groups(utterances: Sequence[Utterance], gaps: Gaps, lemmas: Sequence
             groups[-1] = (0, item)  # a short opening belongs to the first item
             continue
         groups.append((start, item))
+    if len(groups) > 1 and groups[0][1] is None and 0 not in items and 0 not in deferred:
+        # Meetings open with their first item (roll call, last week's actions), often in
+        # words too common to score: a long opening that uses its title takes it.
+        opening = {w for u in utterances[: groups[1][0]] for w in _words(u.text)}
+        if set(_words(agenda[0].title)) & opening:
+            groups[0] = (0, 0)
     return groups
 
 
@@ -480,9 +498,14 @@ def _title(keywords: Sequence[str], scores: Sequence[float]) -> str:
 
 
 def align(
-    segments: Sequence[Segment], lemmas: Sequence[Sequence[str]], agenda: Sequence[AgendaItem]
+    segments: Sequence[Segment], lemmas: Sequence[Sequence[str]], agenda: Sequence[AgendaItem],
+    opened: Sequence[int | None] = (), deferred: Collection[int] = frozenset(),
 ) -> list[int | None]:
-    """Return, per segment, the agenda item it discusses (or None), keeping agenda order."""
+    """Return, per segment, the agenda item it discusses (or None), keeping agenda order.
+
+    ``opened[s]`` is the item segment ``s`` opens aloud, if any (see ``transitions``); items
+    in ``deferred`` were announced and put off, so no segment takes them.
+    """
     from .nlp import load
 
     nlp = load()
@@ -509,6 +532,17 @@ def align(
             cover = sum(idf(w) for w in hits) / sum(idf(w) for w in words)
             density = sum(tf[w] for w in hits) / total
             score[s, j] = cover * math.sqrt(density)
+    cued = [(s, j) for s, j in enumerate(opened) if j is not None]
+    for s, j in cued:
+        score[s, j] += CUE_BONUS
+    # between two spoken moves, talk belongs to the item opened first or to one between
+    # them that was never announced: [previous cue's item, next cue's item)
+    bounds = [(-1, 0)] + cued + [(n, len(agenda))]
+    for (a, lo), (b, hi) in zip(bounds, bounds[1:], strict=False):
+        score[a + 1 : b, :lo] = 0.0
+        score[a + 1 : b, hi:] = 0.0
+    for j in deferred:
+        score[:, j] = 0.0
     return _monotone(score, threshold=0.05)
 
 
@@ -544,3 +578,139 @@ def _monotone(score: np.ndarray, threshold: float) -> list[int | None]:
             out[s] = j
         s -= 1
     return out
+
+
+# --------------------------------------------------------------------------- spoken transitions
+
+
+@dataclass(frozen=True)
+class Cue:
+    """A point where someone opens an agenda item aloud ("Item four, the director's report")."""
+
+    utterance: int
+    item: int
+    explicit: bool  # the item's number was said, not only its title words
+
+
+# Said right before an item's title when the chair moves the meeting on (common practice).
+TRANSITION_PHRASES = ("next item", "next on the agenda", "next is", "next thing", "moving on",
+                      "move on to", "brings us to", "turn to", "last thing on the agenda",
+                      "last item", "we also have", "now to", "on to the")
+# Said of an item that is announced but put off; the item is then not taken up.
+DEFERRAL_PHRASES = ("carry it over", "carried over", "carry that over", "postpone", "defer",
+                    "next month", "not taken up", "skip", "held over", "hold it over",
+                    "table it", "tabled")
+# Words an utterance may open with before the title of the item it moves on to.
+OPENERS = frozenset("okay ok right alright all so now next then um uh well".split())
+NUMBER_WORDS = {w: str(n) for n, w in enumerate(
+    "zero one two three four five six seven eight nine ten eleven twelve thirteen fourteen "
+    "fifteen sixteen seventeen eighteen nineteen twenty".split())}
+_WORD = re.compile(r"[a-z][a-z'-]*|\d+")
+_ITEM = re.compile(r"\bitem (?:number )?([a-z]+|\d+)(?:[ -]?([a-h])\b)?")
+
+
+def _stem(word: str) -> str:
+    """Return a crude stem, so "opening", "openings" and "open" meet (lemmas disagree)."""
+    word = word.removesuffix("'s").removesuffix("s'")
+    for suffix, repl in (("ies", "y"), ("ing", ""), ("s", "")):
+        if word.endswith(suffix) and len(word) - len(suffix) >= 4:
+            return word[: len(word) - len(suffix)] + repl
+    return word
+
+
+def _words(text: str) -> list[str]:
+    """Return the stems of the content words of ``text`` (stop words and fillers dropped)."""
+    from spacy.lang.en.stop_words import STOP_WORDS
+
+    return [_stem(w) for w in _WORD.findall(text.lower())
+            if w not in STOP_WORDS and w not in FILLERS and len(w) > 2]
+
+
+def _title_words(utterances: Sequence[Utterance], agenda: Sequence[AgendaItem]
+                 ) -> tuple[list[set[str]], list[set[str]]]:
+    """Return, per item, the words of its title on no other item's title, and those of them
+    said in few utterances of this meeting (words heard all along mark nothing alone)."""
+    titles = [set(_words(item.title)) for item in agenda]
+    shared = Counter(w for words in titles for w in words)
+    own = [{w for w in words if shared[w] == 1} for words in titles]
+    df = Counter(w for u in utterances for w in set(_words(u.text)))
+    most = max(3, int(0.08 * len(utterances)))
+    return own, [{w for w in words if 0 < df[w] <= most} for words in own]
+
+
+def transitions(utterances: Sequence[Utterance], agenda: Sequence[AgendaItem]
+                ) -> tuple[list[Cue], set[int]]:
+    """Return the spoken openings of agenda items, in order, and the items announced only to
+    be put off ("Item nine ... we'll carry it over to next month")."""
+    numbers = {item.number.lower().replace(" ", ""): j for j, item in enumerate(agenda)
+               if item.number}
+    own, distinct = _title_words(utterances, agenda)
+    found: list[Cue] = []
+    deferred: set[int] = set()
+    for i, u in enumerate(utterances):
+        text = u.text.lower()
+        mentions: list[tuple[int, int, bool]] = []  # (position, item, explicit)
+        for m in _ITEM.finditer(text):
+            key = NUMBER_WORDS.get(m.group(1), m.group(1)) + (m.group(2) or "")
+            if key not in numbers and m.group(2):
+                key = key[:-1]  # "item nine a": the letter was the next word, not a part
+            if key in numbers:
+                mentions.append((m.start(), numbers[key], True))
+        for phrase in TRANSITION_PHRASES:
+            at = text.find(phrase)
+            if at >= 0:
+                # after "that brings us to" any word of the title names the item
+                j = _named(_words(text[at + len(phrase) : at + len(phrase) + 80]), own)
+                if j is not None:
+                    mentions.append((at, j, False))
+        words = _WORD.findall(text)
+        if words and words[0] in OPENERS:
+            # "Okay. Opening day.": only a rare title word right at the start names the item
+            j = _named(_words(text)[:3], distinct)
+            if j is not None:
+                mentions.append((0, j, False))
+        said = set(_words(text))
+        named = {j for j, title in enumerate(distinct) if title & said}
+        if len(named) > 2 and all(at == 0 and not explicit for at, _, explicit in mentions):
+            continue  # a run-through of the agenda or a read-back, not a move to one item
+        mentions.sort()
+        opened = None
+        for n, (at, j, explicit) in enumerate(mentions):
+            end = mentions[n + 1][0] if n + 1 < len(mentions) else len(text)
+            if any(p in text[at:end] for p in DEFERRAL_PHRASES):
+                deferred.add(j)
+            else:
+                opened = (j, explicit)
+        if opened is not None:
+            found.append(Cue(i, *opened))
+    return _in_order(found, deferred), deferred
+
+
+def _named(words: Sequence[str], titles: Sequence[set[str]]) -> int | None:
+    """Return the item whose title has the first of ``words`` that one title has (or None)."""
+    for w in words:
+        items = [j for j, title in enumerate(titles) if w in title]
+        if len(items) == 1:
+            return items[0]
+    return None
+
+
+def _in_order(cues: Sequence[Cue], deferred: set[int]) -> list[Cue]:
+    """Return the heaviest chain of cues whose items rise (a said number weighs double), so
+    an aside ("it's item eight D, we'll get there") does not reorder the meeting."""
+    cues = [c for c in cues if c.item not in deferred]
+    if not cues:
+        return []
+    weight = [2.0 if c.explicit else 1.0 for c in cues]
+    best = weight[:]
+    back = [-1] * len(cues)
+    for k in range(len(cues)):
+        for p in range(k):
+            if cues[p].item < cues[k].item and best[p] + weight[k] > best[k]:
+                best[k], back[k] = best[p] + weight[k], p
+    k = int(np.argmax(best))
+    chain = []
+    while k >= 0:
+        chain.append(cues[k])
+        k = back[k]
+    return chain[::-1]
