@@ -584,7 +584,7 @@ def _monotone(score: np.ndarray, threshold: float) -> list[int | None]:
 
 
 @dataclass(frozen=True)
-class Cue:
+class AgendaCue:
     """A point where someone opens an agenda item aloud ("Item four, the director's report")."""
 
     utterance: int
@@ -639,13 +639,13 @@ def _title_words(utterances: Sequence[Utterance], agenda: Sequence[AgendaItem]
 
 
 def transitions(utterances: Sequence[Utterance], agenda: Sequence[AgendaItem]
-                ) -> tuple[list[Cue], set[int]]:
+                ) -> tuple[list[AgendaCue], set[int]]:
     """Return the spoken openings of agenda items, in order, and the items announced only to
     be put off ("Item nine ... we'll carry it over to next month")."""
     numbers = {item.number.lower().replace(" ", ""): j for j, item in enumerate(agenda)
                if item.number}
     own, distinct = _title_words(utterances, agenda)
-    found: list[Cue] = []
+    found: list[AgendaCue] = []
     deferred: set[int] = set()
     for i, u in enumerate(utterances):
         text = u.text.lower()
@@ -682,7 +682,7 @@ def transitions(utterances: Sequence[Utterance], agenda: Sequence[AgendaItem]
             else:
                 opened = (j, explicit)
         if opened is not None:
-            found.append(Cue(i, *opened))
+            found.append(AgendaCue(i, *opened))
     return _in_order(found, deferred), deferred
 
 
@@ -695,7 +695,7 @@ def _named(words: Sequence[str], titles: Sequence[set[str]]) -> int | None:
     return None
 
 
-def _in_order(cues: Sequence[Cue], deferred: set[int]) -> list[Cue]:
+def _in_order(cues: Sequence[AgendaCue], deferred: set[int]) -> list[AgendaCue]:
     """Return the heaviest chain of cues whose items rise (a said number weighs double), so
     an aside ("it's item eight D, we'll get there") does not reorder the meeting."""
     cues = [c for c in cues if c.item not in deferred]
