@@ -222,6 +222,49 @@ def _phrase(state: State, sentence: Sentence, offset: int, names: list[str],
     return verb_phrase(sentence.span, start, drop_chars=drops, drop_names=names)
 
 
+# Procedural moves and statements of one's vote are acts performed in the room as they are
+# said (common practice of meeting procedure): "I'll second that", "I'll abstain", "I'll
+# call the roll", "state your name for the record". Nothing is left to do after the meeting.
+PROCEDURAL = re.compile(
+    r"^(?:abstain|vote|second|call (?:the |this |a )?(?:roll|meeting|vote|question|order)|"
+    r"call (?:this|the) [a-z ]*(?:meeting|session)\b.*\bto order|"
+    r"withdraw (?:my |the |our )?(?:motion|amendment|second)|move (?:that|to adjourn|the motion|"
+    r"we adjourn)|adjourn|table (?:the|this|that) motion|recuse|recognise|recognize|chair|"
+    r"go ahead and state|state (?:your|my|his|her|their) name|"
+    r"(?:go ahead and )?(?:state|give|spell) (?:your|my) (?:name|address))\b"
+)
+# Habitual narrative ("the night before I'll look at the forecast... we can often work the
+# inside pots"): "will" of habit describes a routine, not a task owed to this group. The
+# markers are adverbs of frequency and generic time clauses, in the sentence or in the same
+# speaker's next words (narratives in research interviews run over several cues).
+HABITUAL = re.compile(
+    r"(?:^|\s)(?:usually|always|normally|typically|often|sometimes|"
+    r"tend to|every (?:day|morning|night|evening|week|month|year|time|season|summer|winter)|"
+    r"each (?:day|morning|night|time|week)|most (?:days|mornings|nights|weeks)|"
+    r"the night before|on (?:a )?(?:good|bad) days?)(?:\s|$)"
+)
+# in the sentence itself a generic time clause also marks habit ("whenever the wind drops")
+HABITUAL_HERE = re.compile(r"(?:^|\s)whenever\s")
+
+
+def procedural(task: str) -> bool:
+    """Return True when a task is a procedural move or a vote stated in the room."""
+    return bool(PROCEDURAL.search(task.lower()))
+
+
+def habitual(state: State, k: int, sentence: Sentence) -> bool:
+    """Return True when a commitment sits in a narrative of habit, not a plan for this group."""
+    if HABITUAL.search(sentence.toks) or HABITUAL_HERE.search(sentence.toks):
+        return True
+    turn = state.turns[k]
+    utterances = state.ctx.transcript.utterances
+    i = turn.utterance.index
+    # the same speaker's next words (fixed transcript text: the step stays pure)
+    near = [u for u in utterances[i: i + 4]
+            if u.speaker == turn.speaker and abs(u.start - turn.utterance.start) <= 30.0]
+    return any(HABITUAL.search(" " + u.text.lower().replace(",", " ") + " ") for u in near)
+
+
 def _immediate(task: str, due: str | None, due_text: str) -> bool:
     """Return True for talk about the next minute ("I'll just go over it quickly")."""
     if due or due_text:
@@ -356,6 +399,8 @@ def read_new(state: State, k: int, sentence: Sentence) -> list[Found]:
         if not content_stems(task) and not pronoun:
             continue
         if found and found[-1].owner == owner and found[-1].task.endswith(task):
+            continue
+        if habitual(state, k, sentence):
             continue
         used.add(verb.i)
         clause = sentence.doc[start:end].text

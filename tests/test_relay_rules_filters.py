@@ -1,0 +1,71 @@
+"""The rules reader's filters: votes and procedural moves, habit, passing remarks, carried ids."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from test_relay_rules import meeting, run
+
+from minutes.model import ActionItem, Change, Evidence, Ledger
+from minutes.relay.reconcile import reconcile
+
+
+def test_votes_and_procedural_moves_are_not_actions() -> None:
+    ledger = run([("Kim Lee", "I'll second that."),
+                  ("Priya Shah", "I'm going to abstain on this one."),
+                  ("Tom Brandt", "I'll vote against it."),
+                  ("Kim Lee", "Go ahead and state your name for the record."),
+                  ("Priya Shah", "I'll call the roll."),
+                  ("Tom Brandt", "I'll send the revised lease to the landlord by Friday.")])
+    assert [a.task for a in ledger.actions] == ["send the revised lease to the landlord"]
+
+
+def test_habitual_will_is_not_a_commitment() -> None:
+    # a research interview: a routine told in the future of habit (common practice of
+    # interview analysis: "will" with frequency adverbs describes what usually happens)
+    ledger = run([("Kim Lee", "Walk me through a morning."),
+                  ("Priya Shah", "I'll check the forecast on the phone, usually the marine one."),
+                  ("Priya Shah", "I'll look at the tide tables every morning."),
+                  ("Tom Brandt", "I'll send you the consent form by Friday.")])
+    assert [a.task for a in ledger.actions] == ["send you the consent form"]
+
+
+def test_passing_remarks_mid_meeting_are_left_out_of_a_long_meeting() -> None:
+    # a first-person remark early in a long meeting is dropped; an assignment at the close
+    # (where the work is handed out: common practice) stays
+    filler = [("Priya Shah", "We talked about the colours of the case for a while today.")] * 40
+    lines = ([("Kim Lee", "Okay, let's begin."),
+              ("Tom Brandt", "I will email the printer about the paper.")]
+             + filler + [("Kim Lee", "Tom, you will draw up the case design."),
+                         ("Tom Brandt", "Sure.")])
+    ctx, segments = meeting(lines)
+    stretched = tuple(replace(u, start=u.start * 8, end=u.end * 8,
+                              cues=tuple(replace(c, start=c.start * 8, end=c.end * 8)
+                                         for c in u.cues))
+                      for u in ctx.transcript.utterances)
+    assert stretched[-1].end > 600  # a whole meeting, not an excerpt
+    from minutes.model import Segment
+    from minutes.relay.context import ReadContext
+    from minutes.relay.ledger import relay
+    from minutes.relay.rules import RulesReader
+
+    t = replace(ctx.transcript, utterances=stretched)
+    ctx = ReadContext(t, ctx.parsed, ctx.directory)
+    seg = Segment(0, 0, len(stretched) - 1, stretched[0].start, stretched[-1].end, stretched)
+    ledger = reconcile(relay((seg,), RulesReader(ctx)).ledger, ctx)
+    assert [(a.task, a.owner) for a in ledger.actions] == [
+        ("draw up the case design", "Tom Brandt")]
+
+
+def test_carried_items_keep_their_ids_and_new_ones_follow() -> None:
+    ctx, _ = meeting([("Kim Lee", "Hello.")])
+    ev = Evidence(0, "c0", 0.0, 1.0, "Kim Lee", "Hello.")
+    carried = ActionItem("A7", "book the hall", "Kim Lee", None, "open", -100.0, (ev,),
+                         (Change("created", None, ev, source="series"),))
+    new_early = ActionItem("A1", "print the flyers", None, None, "open", -200.0, (ev,),
+                           (Change("created", None, ev),))
+    new_late = ActionItem("A2", "email the council", None, None, "open", 50.0, (ev,),
+                          (Change("created", None, ev),))
+    out = reconcile(Ledger(actions=(new_late, carried, new_early)), ctx)
+    assert [(a.id, a.task) for a in out.actions] == [
+        ("A8", "print the flyers"), ("A7", "book the hall"), ("A9", "email the council")]
