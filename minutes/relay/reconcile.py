@@ -56,10 +56,11 @@ def _merge_decisions(items: tuple[Decision, ...]) -> list[Decision]:
 CHAIR_ROLES = re.compile(r"\b(?:chair|chairs|chairperson|chairman|chairwoman|project manager|"
                          r"facilitator|convener|convenor|president|moderator)\b", re.I)
 # Action items are reviewed at the close of a meeting (common practice: the chair sums up
-# who does what next). AMI gold actions sit late: every matched one starts after 0.76 of
-# the meeting. 0.75 is the lowest cut that keeps them all (chosen on AMI; ICSI has no gold
-# actions, the demo keys are the check).
-CLOSING_PART = 0.75
+# who does what next). AMI gold actions sit late. Chosen on the 7 AMI meetings with gold
+# actions, leaving one out at a time over {0.6, 0.7, 0.75, 0.8, 0.85, no cut}: 0.85 is best
+# in 6 of the 7 folds (0.6-0.75 tie lower; the 7th fold prefers no late exception). ICSI
+# has no gold actions; the demo keys are the check (unchanged at any of these values).
+CLOSING_PART = 0.85
 # A transcript shorter than this is an excerpt with no close to review actions at: every
 # action stays. (No dev meeting is near it: AMI and ICSI run 17-65 minutes.)
 WHOLE_MEETING = 600.0  # seconds
