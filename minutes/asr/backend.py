@@ -6,8 +6,10 @@ windows or cues: ``recognize`` gets 16 kHz samples and returns times relative to
 
 from __future__ import annotations
 
+import ctypes
 import functools
 import os
+import platform
 from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -84,6 +86,7 @@ class WhisperRecognizer:
     def __init__(self, model_dir: Path, threads: int = 0) -> None:
         self.model_dir = Path(model_dir)
         self.threads = cpu_threads(threads)
+        bound_heap()  # once per process: large blocks go back to the kernel on free
         self.model = _load_whisper(str(self.model_dir), self.threads)
 
     def recognize(self, audio: np.ndarray, *, language: str | None, prompt: str | None,
@@ -106,6 +109,34 @@ def _spans(segments: Any) -> Iterator[Span]:
         words = tuple(Word(float(w.start), float(w.end), w.word.strip(), float(w.probability))
                       for w in (seg.words or ()) if w.word.strip())
         yield Span(float(seg.start), float(seg.end), seg.text.strip(), words)
+
+
+MMAP_THRESHOLD = 4 * 1024 * 1024  # bytes; blocks this large get their own pages from the kernel
+_M_MMAP_THRESHOLD = -3  # glibc's mallopt parameter number (malloc.h)
+
+
+@functools.cache
+def bound_heap() -> bool:
+    """Return True when glibc was told to give large blocks straight back to the kernel.
+
+    Why: each window allocates and frees many blocks of 4-100 MB (features, the VAD's batches,
+    CTranslate2's buffers). glibc raises its mmap threshold to the size of the largest block
+    freed (up to 32 MB), after which such blocks come from the heap and freeing them leaves
+    holes that the next window, of slightly different sizes, cannot reuse: resident memory
+    grew by about 60-290 MB per 5-minute window (bench/asr.py). A fixed threshold keeps every
+    large block in its own mapping, returned on free, so the peak stays flat with length.
+    A threshold the user set with MALLOC_MMAP_THRESHOLD_ is left alone; other C libraries
+    (macOS, musl) are left alone too.
+    """
+    if os.environ.get("MALLOC_MMAP_THRESHOLD_") or platform.system() != "Linux":
+        return False
+    if platform.libc_ver()[0] != "glibc":
+        return False
+    try:
+        libc = ctypes.CDLL("libc.so.6")
+        return bool(libc.mallopt(_M_MMAP_THRESHOLD, MMAP_THRESHOLD))
+    except (OSError, AttributeError):
+        return False
 
 
 @functools.lru_cache(maxsize=1)
