@@ -1,7 +1,7 @@
 """Who-spoke-when and voice naming on invented meetings spoken by espeak-ng voices.
 
     .venv/bin/python bench/diarization.py [--meetings 3] [--speakers 2,3,4] [--turns 24]
-                                          [--reverb] [--model-dir DIR] [--threads 2]
+                                          [--reverb] [--blind] [--model-dir DIR] [--threads 2]
                                           [--workdir DIR] [--seed 0]
 
 Each meeting is a script of our own (``LINES`` below), spoken turn by turn by 2-4 of the
@@ -194,6 +194,8 @@ def main() -> None:
     ap.add_argument("--speakers", default="2,3,4")
     ap.add_argument("--turns", type=int, default=24)
     ap.add_argument("--reverb", action="store_true")
+    ap.add_argument("--blind", action="store_true",
+                    help="cluster without the voice samples (they still name the clusters)")
     ap.add_argument("--model-dir", type=Path, default=None)
     ap.add_argument("--threads", type=int, default=2)
     ap.add_argument("--workdir", type=Path, default=None)
@@ -221,9 +223,10 @@ def main() -> None:
             people = rng.sample(sorted(VOICES), k)
             meeting = make_meeting(work / f"m{m}_{k}", people, args.turns, rng, args.reverb)
             t0 = time.perf_counter()
-            found = diarize(_read(meeting.path), embedder, options)
             enrolled = [(p, v) for p, path in meeting.samples.items()
                         if (v := enrol(_person(p, path), embedder, options)) is not None]
+            voices = np.stack([v for _, v in enrolled]) if enrolled and not args.blind else None
+            found = diarize(_read(meeting.path), embedder, options, voices)
             names = name_speakers(found.centres, enrolled, options.match_threshold)
             work_s += time.perf_counter() - t0
             t0 = time.perf_counter()
