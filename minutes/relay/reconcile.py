@@ -52,6 +52,47 @@ def _merge_decisions(items: tuple[Decision, ...]) -> list[Decision]:
     return out
 
 
+# A decision reported in the past tense ("we decided on a kinetic charger") in the opening
+# of a meeting reviews the previous meeting (common practice: the chair recaps the last
+# minutes before new business), and this meeting's minutes should not repeat it. Chosen on
+# the 7 AMI meetings with gold decisions, leaving one out, jointly with RUN_GAP over
+# {0, 0.05, 0.1, 0.15, 0.2} x {none, 5, 20, 30, 45, 60, 90 s}: (0.1, 60 s) is picked in 3 of
+# the 7 folds and on all 7 (no other pair in more than 2). ICSI is the held-out check.
+OPENING_PART = 0.10
+REPORTED = re.compile(r"\b(?:decided|agreed|settled|concluded)\b", re.I)
+# One speaker stating decisions back to back ("we've got the T_V, we've got the video, ...")
+# is one recap: the minutes list it once, as one item, as a secretary would. Items of the same
+# speaker less than this apart (end of one cue to start of the next) are one item.
+RUN_GAP = 60.0  # seconds; chosen with OPENING_PART (above)
+
+
+def _reviews_last_meeting(item: Decision, transcript: Transcript) -> bool:
+    """Return True for a stated decision, in the past tense, in the opening of a full meeting."""
+    if _carried(item) or item.proposal is not None or not transcript.utterances:
+        return False
+    start = transcript.utterances[0].start
+    length = transcript.duration - start
+    if length < WHOLE_MEETING or (item.time - start) / length >= OPENING_PART:
+        return False
+    return bool(REPORTED.search(item.evidence[0].quote))
+
+
+def _consolidate(items: list[Decision]) -> list[Decision]:
+    """Return the decisions with each run of one speaker's back-to-back items made one item."""
+    out: list[Decision] = []
+    for item in items:
+        if out and not _carried(item) and not _carried(out[-1]) and out[-1].by == item.by:
+            kept = out[-1]
+            gap = min(e.start for e in item.evidence) - max(e.end for e in kept.evidence)
+            if gap <= RUN_GAP:
+                ev = kept.evidence + tuple(e for e in item.evidence if e not in kept.evidence)
+                out[-1] = replace(kept, text=f"{kept.text}; {item.text}", evidence=ev,
+                                  history=kept.history + item.history)
+                continue
+        out.append(item)
+    return out
+
+
 # Roles that run a meeting (common practice; AMI's "project manager" chairs its meetings).
 CHAIR_ROLES = re.compile(r"\b(?:chair|chairs|chairperson|chairman|chairwoman|project manager|"
                          r"facilitator|convener|convenor|president|moderator)\b", re.I)
@@ -148,7 +189,9 @@ def reconcile(ledger: Ledger, ctx: ReadContext) -> Ledger:
         else:
             actions.append(item)
     actions = [a for a in actions if _firm(a, ctx.transcript, chair)]
-    decisions = _merge_decisions(ledger.decisions)
+    decisions = _merge_decisions(tuple(d for d in ledger.decisions
+                                       if not _reviews_last_meeting(d, ctx.transcript)))
+    decisions = _consolidate(decisions)
     questions: list[Question] = sorted(ledger.questions, key=lambda q: q.time)
     return replace(
         ledger,
