@@ -6,8 +6,20 @@ from dataclasses import replace
 
 from test_relay_rules import meeting, run
 
-from minutes.model import ActionItem, Change, Evidence, Ledger
+from minutes.model import (
+    ActionItem,
+    Change,
+    Cue,
+    Decision,
+    Evidence,
+    Ledger,
+    Transcript,
+    Utterance,
+)
+from minutes.nlp import Parsed
+from minutes.relay.context import ReadContext
 from minutes.relay.reconcile import reconcile
+from minutes.speakers import Directory
 
 
 def test_votes_and_procedural_moves_are_not_actions() -> None:
@@ -69,3 +81,41 @@ def test_carried_items_keep_their_ids_and_new_ones_follow() -> None:
     out = reconcile(Ledger(actions=(new_late, carried, new_early)), ctx)
     assert [(a.id, a.task) for a in out.actions] == [
         ("A8", "print the flyers"), ("A7", "book the hall"), ("A9", "email the council")]
+
+
+def _decision_ctx(length: float) -> ReadContext:
+    """Return a context whose transcript runs ``length`` seconds (two speakers)."""
+    us = (Utterance(0, 0.0, 2.0, "Kim Lee", "Hello.", (Cue("c0", 0.0, 2.0, "Hello."),)),
+          Utterance(1, length - 2.0, length, "Tom Brandt", "Bye.",
+                    (Cue("c1", length - 2.0, length, "Bye."),)))
+    return ReadContext(Transcript(us), Parsed(()), Directory())
+
+
+def _decision(text: str, at: float, by: str, quote: str, proposal: str | None = None) -> Decision:
+    ev = Evidence(0, f"c{at:g}", at, at + 3.0, by, quote)
+    return Decision("", text, at, by, (ev,), (Change("created", None, ev),), proposal=proposal)
+
+
+def test_past_decisions_in_the_opening_review_the_last_meeting() -> None:
+    # the chair recaps the last meeting's decisions before new business (common practice)
+    recap = _decision("A kinetic charger", 30.0, "Kim Lee", "So we decided on a kinetic charger.")
+    agreed = _decision("Use rubber buttons", 60.0, "Tom Brandt", "Should we use rubber buttons?",
+                       proposal="P1")
+    later = _decision("A rubber case", 900.0, "Kim Lee", "So we decided on a rubber case.")
+    ledger = Ledger(decisions=(recap, agreed, later))
+    out = reconcile(ledger, _decision_ctx(1200.0))  # a whole 20-minute meeting
+    assert [d.text for d in out.decisions] == ["Use rubber buttons", "A rubber case"]
+    # an excerpt (under 10 minutes) has no opening: the statement stays
+    short = reconcile(Ledger(decisions=(recap,)), _decision_ctx(300.0))
+    assert [d.text for d in short.decisions] == ["A kinetic charger"]
+
+
+def test_one_speakers_back_to_back_decisions_are_one_item() -> None:
+    a = _decision("The T_V", 500.0, "Kim Lee", "We've got the T_V,")
+    b = _decision("The video", 510.0, "Kim Lee", "we've got the video.")
+    other = _decision("A flip screen", 520.0, "Tom Brandt", "We're going with a flip screen.")
+    late = _decision("A yellow case", 900.0, "Tom Brandt", "We're going with a yellow case.")
+    out = reconcile(Ledger(decisions=(late, other, b, a)), _decision_ctx(1200.0))
+    assert [d.text for d in out.decisions] == ["The T_V; The video", "A flip screen",
+                                               "A yellow case"]
+    assert [len(d.evidence) for d in out.decisions] == [2, 1, 1]
