@@ -1,7 +1,8 @@
 """Who-spoke-when and voice naming on invented meetings spoken by espeak-ng voices.
 
     .venv/bin/python bench/diarization.py [--meetings 3] [--speakers 2,3,4] [--turns 24]
-                                          [--reverb] [--blind] [--model-dir DIR] [--threads 2]
+                                          [--reverb] [--blind] [--merge 0.86] [--match 0.5]
+                                          [--model-dir DIR] [--threads 2]
                                           [--workdir DIR] [--seed 0]
 
 Each meeting is a script of our own (``LINES`` below), spoken turn by turn by 2-4 of the
@@ -196,6 +197,8 @@ def main() -> None:
     ap.add_argument("--reverb", action="store_true")
     ap.add_argument("--blind", action="store_true",
                     help="cluster without the voice samples (they still name the clusters)")
+    ap.add_argument("--merge", type=float, default=SpeakerOptions.merge_threshold)
+    ap.add_argument("--match", type=float, default=SpeakerOptions.match_threshold)
     ap.add_argument("--model-dir", type=Path, default=None)
     ap.add_argument("--threads", type=int, default=2)
     ap.add_argument("--workdir", type=Path, default=None)
@@ -208,7 +211,8 @@ def main() -> None:
 
     work = args.workdir or Path(tempfile.mkdtemp(prefix="minutes-diar-"))
     rng = random.Random(args.seed)
-    options = SpeakerOptions(threads=args.threads, model_dir=args.model_dir)
+    options = SpeakerOptions(threads=args.threads, model_dir=args.model_dir,
+                             merge_threshold=args.merge, match_threshold=args.match)
     embedder = load_embedder(args.model_dir, args.threads)
     der0, der25 = DiarizationErrorRate(collar=0.0), DiarizationErrorRate(collar=0.25)
     same: list[float] = []

@@ -238,14 +238,18 @@ def spectral(x: np.ndarray, options: SpeakerOptions) -> np.ndarray:
     sim = x @ x.T
     top_k = min(options.max_speakers, n - 1)
     best: tuple[float, int, np.ndarray] | None = None
-    for keep in sorted({min(n - 1, k) for k in (4, 6, 8, 12, 16, 24, max(24, n // 40))}):
+    # A dense graph (many links per print) is always one component: keep under a quarter.
+    keeps = {min(k, max(3, n // 4)) for k in (4, 6, 8, 12, 16, 24, max(24, n // 40))}
+    for keep in sorted(keeps):
         values, vectors = _laplacian_eigen(sim, keep)
         gaps = np.diff(values[:top_k + 1])
         if options.num_speakers is not None:
             k = min(options.num_speakers, n)
             clarity = float(gaps[k - 1]) if k - 1 < len(gaps) else 0.0
         else:
-            k = int(np.argmax(gaps)) + 1
+            # The first gap (one speaker or more?) is not comparable across prunings: at
+            # least two clusters here, and merge_similar joins them again if they are one voice.
+            k = int(np.argmax(gaps[1:])) + 2 if len(gaps) > 1 else 1
             clarity = float(gaps[k - 1])
         clarity /= max(float(values[top_k]), 1e-9)
         if best is None or clarity > best[0]:
