@@ -8,9 +8,11 @@ Optional extra ``speakers`` (the CAM++ model set up once, see ``minutes.asr.camp
 1. Silero VAD (bundled with faster-whisper) finds speech, 60 s of audio at a time so memory
    stays flat however long the recording is.
 2. Windows of 1.5 s every 0.75 s over the speech each get a CAM++ voice print.
-3. Spectral clustering on the pruned cosine-similarity graph; the number of speakers is the
-   largest gap between Laplacian eigenvalues; clusters whose centres are as alike as two
-   windows of one voice usually are get merged (the eigengap alone over-splits one voice).
+3. Spectral clustering on the pruned cosine-similarity graph, the pruning chosen per
+   recording; the number of speakers (2 or more) is the largest gap between Laplacian
+   eigenvalues. Then clusters that are one voice merge: two clusters that both match one
+   enrolled voice sample always, a matched and an unmatched one never, two unmatched ones when
+   their centres reach ``merge_threshold`` (that is how one speaker comes out as one).
 4. Each cluster takes the name of the enrolled voice (``Person.voice_sample``) its centre is
    most like, one cluster per person, when the cosine similarity reaches ``match_threshold``;
    other clusters are "Speaker 1", "Speaker 2"... in order of first appearance.
@@ -289,9 +291,9 @@ def merge_similar(x: np.ndarray, labels: np.ndarray, options: SpeakerOptions,
                   voices: np.ndarray | None = None) -> np.ndarray:
     """Return labels 0..k-1 after merging clusters that are one voice.
 
-    Two clusters that are the same enrolled voice always merge, two that are different
-    enrolled voices never do; otherwise they merge when their centres reach
-    ``merge_threshold``. Synthetic voices showed why samples must decide where they can: two
+    Two clusters that are the same enrolled voice always merge; one enrolled and one not, or
+    two different enrolled voices, never do; two unenrolled ones merge when their centres
+    reach ``merge_threshold``. Synthetic voices showed why samples must decide where they can: two
     different voices had centres 0.91 alike, two halves of one voice 0.85.
     """
     voices = voices if voices is not None else np.zeros((0, x.shape[1]), np.float32)
@@ -303,6 +305,9 @@ def merge_similar(x: np.ndarray, labels: np.ndarray, options: SpeakerOptions,
         known = own >= 0
         both = known[:, None] & known[None]
         score = np.where(both, np.where(own[:, None] == own[None], 2.0, -2.0), score)
+        # A cluster that matches no sample well is not that sample's voice either: one
+        # enrolled, one not, stay apart (the voice left out of enrolment merged otherwise).
+        score = np.where(known[:, None] != known[None], -2.0, score)
         np.fill_diagonal(score, -3.0)
         i, j = np.unravel_index(int(np.argmax(score)), score.shape)
         if options.num_speakers is not None:
@@ -397,7 +402,7 @@ def name_speakers(centres: np.ndarray, enrolled: Sequence[tuple[str, np.ndarray]
     if enrolled and len(centres):
         sim = centres @ np.stack([v for _, v in enrolled]).T
         for flat in np.argsort(-sim, axis=None):
-            i, j = np.unravel_index(int(flat), sim.shape)
+            i, j = (int(v) for v in np.unravel_index(int(flat), sim.shape))
             if sim[i, j] < threshold:
                 break
             if names[i] is None and enrolled[j][0] not in names:
