@@ -53,13 +53,12 @@ def test_windows_are_stitched_in_order_with_file_times(recording: Path) -> None:
     assert t.format == "audio" and t.source == str(recording)
 
 
-def test_each_window_is_prompted_with_the_text_before_it(recording: Path) -> None:
+def test_no_window_is_prompted_with_the_text_before_it(recording: Path) -> None:
+    # A previous-text prompt made Whisper drop a sentence (see recognize.py): windows stand alone.
     fake = ScriptedRecognizer(SCRIPT)
     transcribe(recording, AsrOptions(chunk_seconds=10.0), recognizer=fake)
-    prompts = [call[3] for call in fake.calls]
-    assert prompts[0] is None
-    assert prompts[1] == "Call to order. Roll call please."
-    assert prompts[2] == "All members present."
+    assert len(fake.calls) >= 3
+    assert [call[3] for call in fake.calls] == [None] * len(fake.calls)
 
 
 def test_a_detected_language_is_held_for_later_windows(recording: Path) -> None:

@@ -19,7 +19,10 @@ from .cues import CueRules, build, tidy
 Progress = Callable[[float, float], None]
 SpeakerMode = Literal["one", "pauses"]
 
-PROMPT_CHARS = 400  # the previous window's last words, as Whisper's own windows carry them
+# No window is prompted with the text before it: with the previous window's last words as
+# initial_prompt, beam-1 Whisper dropped a whole sentence of a 12 s window in
+# tests/test_asr_whisper.py (and recognised it unprompted); losing speech is worse than the
+# small drift in casing or spelling a prompt would prevent at a cut every few minutes.
 
 
 @dataclass(frozen=True)
@@ -90,7 +93,6 @@ def transcribe(path: Path | str, options: AsrOptions | None = None,
     report = DecodeReport()
     language = options.language
     detected: tuple[str, float] | None = None
-    prompt: str | None = None
     words: list[Word] = []
     done = 0.0
 
@@ -101,14 +103,13 @@ def transcribe(path: Path | str, options: AsrOptions | None = None,
             progress(done, max(info.duration, done) if info.duration else 0.0)
 
     for window in windows(samples(path, report), options.chunk_seconds):
-        result = recognizer.recognize(window.samples, language=language, prompt=prompt,
+        result = recognizer.recognize(window.samples, language=language, prompt=None,
                                       settings=settings)
         if language is None:
             # Detect once, then hold it: a window of silence or music must not switch it.
             language, detected = result.language, (result.language,
                                                    result.language_probability)
         length = window.end - window.start
-        texts = []
         for span in result.spans:
             units = span.words if options.word_timestamps and span.words else (
                 (Word(span.start, span.end, span.text),) if span.text else ())
@@ -117,9 +118,7 @@ def transcribe(path: Path | str, options: AsrOptions | None = None,
                 end = min(max(w.end, start), length)
                 words.append(Word(window.start + start, window.start + end, w.text,
                                   w.probability))
-            texts.append(span.text)
             tell(window.start + min(span.end, length))
-        prompt = " ".join(" ".join(texts).split())[-PROMPT_CHARS:] or None
         tell(window.end)
         # Drop this window's samples and the recogniser's buffers before the next is decoded:
         # otherwise two windows' worth of arrays are alive at the peak.
