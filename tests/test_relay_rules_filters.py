@@ -119,3 +119,38 @@ def test_one_speakers_back_to_back_decisions_are_one_item() -> None:
     assert [d.text for d in out.decisions] == ["The T_V; The video", "A flip screen",
                                                "A yellow case"]
     assert [len(d.evidence) for d in out.decisions] == [2, 1, 1]
+
+
+def _carried(task: str, owner: str, at: float) -> ActionItem:
+    """An open action loaded from an earlier meeting: its evidence has that meeting's clock."""
+    ev = Evidence(3, "9", at, at + 2, owner, task)
+    return ActionItem("A4", task, owner, None, "open", at, (ev,),
+                      history=(Change("carried", "A4 from week 1", ev, source="series"),),
+                      source="series")
+
+
+def test_a_carried_item_is_not_it_or_that_until_this_meeting_names_it() -> None:
+    # Week 1's evidence sits at 2-4 s of week 1's recording; this meeting's first seconds
+    # must not make it "the item just mentioned".
+    from minutes.relay.ledger import relay
+    from minutes.relay.rules import RulesReader
+
+    ctx, segments = meeting([("Kim Lee", "Right. So that's done already, the room is booked."),
+                             ("Priya Shah", "Great.")])
+    ledger = relay(segments, RulesReader(ctx),
+                   Ledger(actions=(_carried("pay the Kilnworth shelving deposit", "Tom Brandt",
+                                            2.0),))).ledger
+    assert ledger.actions[0].status == "open"
+
+
+def test_a_plain_past_report_that_names_a_carried_item_closes_it() -> None:
+    from minutes.relay.ledger import relay
+    from minutes.relay.rules import RulesReader
+
+    ctx, segments = meeting([("Kim Lee", "Tom, the deposit?"),
+                             ("Tom Brandt", "I paid Kilnworth on Friday, all of it.")])
+    carried = Ledger(actions=(_carried("pay the Kilnworth shelving deposit", "Tom Brandt",
+                                       2.0),))
+    ledger = relay(segments, RulesReader(ctx), carried).ledger
+    assert ledger.actions[0].status == "done"
+    assert ledger.actions[0].history[-1].evidence.quote.startswith("I paid Kilnworth")

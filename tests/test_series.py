@@ -47,8 +47,14 @@ def proposal(text: str, by: str, time: float, cue: str) -> Proposal:
 
 def minutes_of(info: MeetingInfo, ledger: Ledger, source: str = "call.vtt") -> Minutes:
     """Return minutes as the pipeline's final pass would leave them (reconcile included)."""
+    from minutes.model import Transcript
+    from minutes.nlp import Parsed
+    from minutes.relay.context import ReadContext
+    from minutes.speakers import Directory
+
+    ctx = ReadContext(Transcript((), meeting=info), Parsed(()), Directory())  # no transcript
     return Minutes(meeting=info, source=source, duration=900.0, attendees=(), segments=(),
-                   summary=(), ledger=reconcile(ledger, None), utterances=())  # type: ignore[arg-type]
+                   summary=(), ledger=reconcile(ledger, ctx), utterances=())
 
 
 def week1_ledger() -> Ledger:

@@ -131,23 +131,22 @@ def test_week2_updates_the_keys_week1_items_as_the_key_says(keyed: Run) -> None:
     # Week 1 from its key, week 2 read by the rules reader: this measures what the series
     # hands the relay and what the relay makes of it, apart from week 1's own extraction.
     found, right, total = score(keyed.week1, keyed.week2)
-    # Measured while the rules reader was being rewritten by another engineer: found 6/6
-    # each time; right 2/6 at commit 90e850c (lease and deposit done; the survey's new
-    # date found, but every other item marked done too) and 1/6 with the uncommitted
-    # reader of 6e8d9b7+ (sign-up sheet dropped; lease and floor plan wrongly dropped,
-    # deposit missed). The floor is the lower of the two; raise it as the reader settles.
+    # Measured once carried items stopped counting as "just mentioned" (their week-1
+    # evidence has week 1's clock): found 6/6, right 5/6 (lease done, deposit done, survey
+    # re-dated to the 19th, floor plan still open, sign-up sheet dropped; the labels'
+    # hand-over to Daniel is missed). Before that fix: 1-2/6.
     print(f"key week 1 -> week 2: carried {found}/{total}, right {right}/{total}")
     assert found == total  # every open item of week 1 is in week 2's ledger, same id
-    assert right >= 1
+    assert right >= 5
 
 
 def test_week2_status_changes_of_week1_items_match_the_key(demo: Run) -> None:
     # Both weeks read by the rules reader end to end: week 1's own misses limit this.
     found, right, total = score(demo.week1, demo.week2)
-    # Measured (rules reader of commit 90e850c): carried 1-2/6, right 1-2/6 (the reader
-    # changed between runs while it was being edited). Raise the floor as it improves.
+    # Measured with the same fix: carried 6/6, right 3/6 (week 1's own extraction closes or
+    # misses some items before week 2 sees them). Before it: 1-2/6.
     print(f"end to end: carried entries {found}/{total}, right {right}/{total}")
-    assert right >= 1
+    assert right >= 3
 
 
 def test_week2_minutes_render_the_carried_table(demo: Run) -> None:

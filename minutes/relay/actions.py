@@ -28,7 +28,7 @@ from .clauses import (
     verb_phrase,
 )
 from .ledger import Add, Op, Update
-from .state import State
+from .state import NEVER, State, last_time
 
 if TYPE_CHECKING:
     from spacy.tokens import Token
@@ -115,6 +115,18 @@ DONE = re.compile(
     r"(?:already |all |now )?(?P<state>done|finished|sorted|taken care of|complete|completed|sent|"
     r"booked|handled|dealt with|fixed|signed|submitted|paid|filed)\b"
 )
+# a plain past-tense report: "I sent the lease back on Thursday", "I paid Kilnworth"
+PAST_REPORT = re.compile(
+    r"(?:^|\s)(?P<who>i|we|he|she|they) "
+    r"(?P<verb>sent|done|did|finished|completed|booked|emailed|called|"
+    r"submitted|fixed|sorted|ordered|paid|signed|written|wrote|checked|contacted|rang|bought|"
+    r"printed|"
+    r"posted|uploaded|shared|circulated|arranged|organised|organized|scheduled|confirmed|updated|"
+    r"spoken|spoke|talked|filled|drafted|prepared|reserved|cancelled|canceled|delivered|returned|"
+    r"renewed|researched|measured|scanned|replied|asked)\b"
+)
+# a bare "Done." answering a question about an item ("Daniel, the deposit?" / "Done.")
+BARE_DONE = re.compile(r"^(?:(?:yeah|yes|yep|um|uh|oh|all) ,? )*(?:done|sorted|finished)\b")
 DROP = re.compile(
     r"(?:^|\s)(?:let 's |we can |we could |we should |we 'll |just |so )?(?:forget|drop|scrap|"
     r"ditch|abandon|scratch|cancel|skip)(?: about)? (?P<what>.+)"
@@ -446,7 +458,7 @@ def target(state: State, now: float, words: frozenset[str], *, verb: str = "",
             score += 0.15
         if unassigned_first and item.owner is None:
             score += 0.1
-        age = now - max(e.start for e in item.evidence)
+        age = now - last_time(item)
         score += 0.2 * math.exp(-max(age, 0.0) / WINDOW)
         if shared >= 0.34 and (best is None or score > best[0]):
             best = (score, item)
@@ -455,28 +467,52 @@ def target(state: State, now: float, words: frozenset[str], *, verb: str = "",
     if not pronoun_ok:
         return None
     if context:  # the last turns name the item ("So the sign-up sheet... would you take that?")
-        talked = [a for a in recent if now - max(e.start for e in a.evidence) <= 6 * WINDOW
+        # an item carried from an earlier meeting counts when these very turns name it
+        talked = [a for a in recent if (now - last_time(a) <= 6 * WINDOW or
+                                        last_time(a) == NEVER)
                   and not (unassigned_first and a.owner is not None)]
-        # what the last sentences talked about, the nearest counting most
-        scores = {a.id: sum(len(said & _task_stems(a)) * 0.75 ** n
+        # what the last sentences talked about, the nearest counting most; an item not yet
+        # mentioned here must be named by its things, not just its verb ("you sent the
+        # photos" does not name "send round a floor plan")
+        scores = {a.id: sum(len(said & _named_by(a)) * 0.75 ** n
                             for n, said in enumerate(context)) for a in talked}
         ranked = sorted(talked, key=lambda a: (scores[a.id], _last(a)), reverse=True)
         if ranked and scores[ranked[0].id] > 0:
             return ranked[0]
     for item in recent:  # "that's done": the item mentioned last, if recent
-        age = now - max(e.start for e in item.evidence)
+        age = now - last_time(item)
         if age > WINDOW:
             break
         if unassigned_first and item.owner is not None:
             continue
         return item
     if unassigned_first:
-        return next((a for a in recent if now - max(e.start for e in a.evidence) <= WINDOW), None)
+        return next((a for a in recent if now - last_time(a) <= WINDOW), None)
     return None
 
 
+_ACTION_VERBS = frozenset(stem(w) for w in (
+    "send give get make do take put check call write ask tell bring book pay sign print "
+    "email ring buy order fix sort set measure draft post share update arrange").split())
+
+
+def _named_by(item: ActionItem) -> frozenset[str]:
+    """Return the stems that name an item in talk: its task words, less its verbs when the
+    item has not been mentioned in this meeting yet (carried from an earlier one)."""
+    words = _task_stems(item)
+    if last_time(item) == NEVER:
+        words = words - _ACTION_VERBS
+    return words
+
+
+def _just_updated(state: State, now: float, kind: str, seconds: float = 45.0) -> bool:
+    """Return True when an item took a ``kind`` change in the last ``seconds`` of this part."""
+    return any(isinstance(op, Update) and op.change.kind == kind
+               and 0 <= now - op.change.evidence.start <= seconds for op in state.ops)
+
+
 def _last(item: ActionItem) -> float:
-    return max(e.start for e in item.evidence)
+    return last_time(item)
 
 
 def _rest_stems(sentence: Sentence, start: int) -> frozenset[str]:
@@ -502,6 +538,8 @@ def read_update(state: State, k: int, sentence: Sentence) -> list[Op]:
         what = next(g for g in m.groups() if g)
         words = content_stems(what)
         pronoun = bool(re.match(r"(?:that|it|this|those|them)\b", what.strip()))
+        if pronoun and _just_updated(state, now, "dropped"):
+            return ops  # "So we drop the sheet." "Yes, drop it.": the same item, once
         item = target(state, now, words, pronoun_ok=pronoun,
                       context=context_stems(state, k, sentence) if pronoun else ())
         if item is not None and (words or pronoun):
@@ -531,6 +569,24 @@ def read_update(state: State, k: int, sentence: Sentence) -> list[Op]:
                 if item.owner is None and mine:  # "It's done. I already sent them."
                     done.insert(0, Update(item.id, Change("owner", turn.speaker, ev)))
                 return done
+    # Without "already", a past-tense report closes an item only when it names it: the
+    # task's own verb and another of its words ("I paid Kilnworth on Friday" for "pay the
+    # Kilnworth shelving deposit"). A bare "Done." answers whatever the last turns named.
+    m = PAST_REPORT.search(toks)
+    if m and not question and not FUTURE.search(toks) and not re.search(
+            r"\b(?:not|n't|never|if|when|once|until|till|before|after)\b", toks[: m.end()]):
+        verb = m.group("verb")
+        words = _rest_stems(sentence, m.start())
+        item = target(state, now, words, verb=verb, pronoun_ok=False)
+        if item is not None and item.task.split() and \
+                stem(item.task.split()[0]) == stem(verb) and \
+                overlap(words - {stem(verb)}, _task_stems(item) - {stem(verb)}) > 0:
+            return [Update(item.id, Change("done", None, ev))]
+    if BARE_DONE.search(toks) and not question and sentence.number == 0:
+        item = target(state, now, frozenset(), pronoun_ok=True,
+                      context=context_stems(state, k, sentence)[1:])
+        if item is not None:
+            return [Update(item.id, Change("done", None, ev))]
     # taking or reassigning: "I can take that", "actually Kim will do it"
     m = TAKE.search(toks)
     if m:

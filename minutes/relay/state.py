@@ -93,11 +93,27 @@ class State:
         return out
 
     def recent_actions(self, now: float, seconds: float = 600.0) -> list[ActionItem]:
-        """Return open actions, most recently mentioned first."""
+        """Return open actions, most recently mentioned first.
+
+        Items carried in from earlier meetings and not yet mentioned in this one come
+        last: they can be named by their content, never be "it" or "that".
+        """
         acts = [a for a in self.ledger.actions if a.status == "open"]
-        acts = [a for a in acts if now - _last_time(a) <= seconds]
-        return sorted(acts, key=_last_time, reverse=True)
+        acts = [a for a in acts if now - last_time(a) <= seconds or last_time(a) == NEVER]
+        return sorted(acts, key=last_time, reverse=True)
 
 
-def _last_time(item: ActionItem) -> float:
-    return max((e.start for e in item.evidence), default=item.time)
+NEVER = float("-inf")
+
+
+def last_time(item: ActionItem) -> float:
+    """Return when the item was last mentioned in THIS meeting (NEVER if it was not).
+
+    Evidence that came with an item from an earlier meeting of a series carries that
+    meeting's clock, so it says nothing about how recent the item is here.
+    """
+    earlier = {c.evidence for c in item.history if c.source == "series"}
+    here = [e.start for e in item.evidence if e not in earlier]
+    if here:
+        return max(here)
+    return NEVER if earlier else item.time
