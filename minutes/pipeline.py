@@ -14,7 +14,7 @@ from typing import TYPE_CHECKING
 
 from .errors import InputError, UsageError
 from .meeting import MeetingFile, beside, load_meeting
-from .model import Ledger, Minutes, Segment, Transcript
+from .model import Ledger, Minutes, Person, Segment, Transcript
 from .segment import SegmentOptions
 
 if TYPE_CHECKING:
@@ -50,8 +50,13 @@ def _quiet(stage: str, done: int, total: int) -> None:
     return None
 
 
-def read_input(path: Path, options: DraftOptions, progress: Progress = _quiet) -> Transcript:
-    """Return the transcript of a caption file or, through speech recognition, a recording."""
+def read_input(path: Path, options: DraftOptions, progress: Progress = _quiet,
+               voices: Sequence[Person] = ()) -> Transcript:
+    """Return the transcript of a caption file or, through speech recognition, a recording.
+
+    For a recording, speakers are told apart by voice when the optional speaker model is
+    set up, and named after the people in ``voices`` whose voice samples match.
+    """
     from .asr.audio import is_recording
     from .ingest import read_transcript
 
@@ -59,10 +64,25 @@ def read_input(path: Path, options: DraftOptions, progress: Progress = _quiet) -
         from .asr import AsrOptions, transcribe
 
         asr_options = options.asr if isinstance(options.asr, AsrOptions) else AsrOptions()
-        return transcribe(path, asr_options,
-                          progress=lambda done, total: progress("transcribe", int(done),
-                                                                int(total)))
+        transcript = transcribe(path, asr_options,
+                                progress=lambda done, total: progress("transcribe", int(done),
+                                                                      int(total)))
+        return label_voices(transcript, path, voices)
     return read_transcript(path, encoding=options.encoding)
+
+
+def label_voices(transcript: Transcript, path: Path, voices: Sequence[Person] = ()) -> Transcript:
+    """Return the transcript with speakers told apart by voice, when the speaker model is set up.
+
+    Without it the transcript is returned as recognised (one speaker, with a warning that
+    names the extra). Only people with a voice sample are offered for naming.
+    """
+    from .asr import speakers
+
+    if not speakers.available():
+        return transcript
+    enrolled = [p for p in voices if p.voice_sample]
+    return speakers.assign_speakers(transcript, path, enrolled)
 
 
 def meeting_file(path: Path, options: DraftOptions) -> MeetingFile:
@@ -115,7 +135,7 @@ def draft(path: Path, options: DraftOptions = DraftOptions(),
     directory = load_profiles(profiles) if profiles else Directory()
 
     progress("read", 0, 1)
-    transcript = read_input(path, options, progress)
+    transcript = read_input(path, options, progress, directory.people)
     if not transcript.utterances:
         raise InputError("no speech or captions found in the file", path=str(path))
     transcript = replace(transcript, meeting=info)

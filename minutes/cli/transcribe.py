@@ -49,11 +49,15 @@ def make_asr_options(asr_model: Path | None, beam_size: int, language: str, no_v
 @click.option("-o", "--output", type=click.Path(dir_okay=False, path_type=Path), required=True,
               help="Caption file to write: .vtt (WebVTT) or .srt.")
 @asr_options
+@click.option("--profiles", type=click.Path(exists=True, path_type=Path),
+              help="Speaker profiles whose voice samples name the voices found "
+                   "(with the speaker model set up).")
 @click.option("--force", is_flag=True, help="Replace the output if it exists.")
 @click.option("-q", "--quiet", is_flag=True, help="No progress on standard error.")
 @guard
 def transcribe(input: Path, output: Path, asr_model: Path | None, beam_size: int, language: str,
-               no_vad: bool, asr_threads: int, force: bool, quiet: bool) -> None:
+               no_vad: bool, asr_threads: int, profiles: Path | None, force: bool,
+               quiet: bool) -> None:
     """Transcribe the recording INPUT on the CPU into captions you can correct by hand."""
     from ..asr import transcribe as run_asr
     from ..asr import write_srt, write_vtt
@@ -65,8 +69,13 @@ def transcribe(input: Path, output: Path, asr_model: Path | None, beam_size: int
     check_target(output, force=force, inputs=[input])
     options = make_asr_options(asr_model, beam_size, language, no_vad, asr_threads)
     progress = Progress(quiet)
+    from ..pipeline import label_voices
+    from ..speakers import load_profiles
+
+    people = load_profiles(profiles).people if profiles else ()
     transcript = run_asr(input, options,
                          progress=lambda done, total: progress("transcribe", int(done), int(total)))
+    transcript = label_voices(transcript, input, people)
     text = write_vtt(transcript) if suffix == ".vtt" else write_srt(transcript)
     write_atomic(output, text.encode("utf-8"), force=force, inputs=[input])
     for warning in transcript.warnings:
