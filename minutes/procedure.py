@@ -35,6 +35,7 @@ from .model import Attendee, Event, Ledger, Quorum, Roster, Segment, Transcript
 from .relay.context import ReadContext
 from .relay.ledger import Add, Op, apply
 from .relay.motions import (
+    ADJOURNED,
     CHAIR_ROLES,
     CLERK_ROLES,
     HYPOTHETICAL,
@@ -131,12 +132,6 @@ _CALL_TO_ORDER = re.compile(
     r"|\bcome\s+(?P<back3>back\s+)?to\s+order\b", re.I)
 _RECONVENE = re.compile(r"\b(?:back\s+in\s+session|reconven(?:e|ed|ing)|resum(?:e|ing)\s+(?:the|"
                         r"our)\s+meeting)\b", re.I)
-_ADJOURN = re.compile(
-    r"\b(?:we|this\s+meeting|the\s+meeting|meeting|this\s+session|the\s+session|session|"
-    r"board|council|committee)\s*(?:is|are|stands?|'re|was|will\s+stand)\s+(?:now\s+|hereby\s+|"
-    r"officially\s+)?adjourned\b"
-    r"|\bi\s+(?:now\s+|hereby\s+)?(?:declare\s+(?:the|this|our)\s+meeting\s+adjourned|adjourn\s+"
-    r"(?:the|this|our)\s+meeting)\b|\b(?:the\s+)?meeting\s+adjourned\b|^adjourned\b", re.I)
 _RECESS = re.compile(
     r"\b(?:take|have|call|declare)\s+(?:a|an)\s+(?:(?P<len>[\w-]+(?:[- ][\w]+)?)[- ]minute\s+|"
     r"short\s+|brief\s+|quick\s+)?(?P<what>recess|break)\b(?P<until>\s+until\s+[\d:.\w ]+)?"
@@ -296,7 +291,7 @@ class ProcedureReader:
                                     _focus(u, r"to\s+order"))], pos + 1
         if _RECONVENE.search(text) and "recess" in kinds and kinds[-1] == "recess":
             return [self._event("call_to_order", u, "reconvened", self._clock(u))], pos + 1
-        if ((m := _ADJOURN.search(text)) and "adjournment" not in kinds
+        if ((m := ADJOURNED.search(text)) and "adjournment" not in kinds
                 and not HYPOTHETICAL.search(text[: m.start()])
                 and not re.search(r"(?i)\bmotion\s+to\s+adjourn\b", text[: m.start()])):
             return [self._event("adjournment", u, "", self._clock(u),
