@@ -154,3 +154,16 @@ def test_a_plain_past_report_that_names_a_carried_item_closes_it() -> None:
     ledger = relay(segments, RulesReader(ctx), carried).ledger
     assert ledger.actions[0].status == "done"
     assert ledger.actions[0].history[-1].evidence.quote.startswith("I paid Kilnworth")
+
+
+def test_same_verb_different_objects_are_two_tasks_and_repeats_merge() -> None:
+    from minutes.relay.reconcile import _same_action
+
+    def task(text: str) -> ActionItem:
+        return ActionItem("", text, "Odette Marchbanks", None, "open", 1.0,
+                          (Evidence(0, "1", 1.0, 2.0, "Odette Marchbanks", text),))
+
+    assert not _same_action(task("bring the full results to the planning retreat in January"),
+                            task("bring back the staffing plan and the full cost breakdown"))
+    assert _same_action(task("send the revised lease to the landlord"),
+                        task("send the lease to the landlord"))

@@ -19,7 +19,12 @@ def _same_action(a: ActionItem, b: ActionItem) -> bool:
         return False
     same_verb = a.task.split()[:1] and b.task.split()[:1] and \
         stem(a.task.split()[0]) == stem(b.task.split()[0])
-    return similar(content_stems(a.task), content_stems(b.task), 0.5 if same_verb else 0.8)
+    if same_verb:
+        # the verb already agrees; the things it acts on must agree too ("bring the survey
+        # results" and "bring the staffing plan" are two tasks)
+        verb = {stem(a.task.split()[0])}
+        return similar(content_stems(a.task) - verb, content_stems(b.task) - verb, 0.5)
+    return similar(content_stems(a.task), content_stems(b.task), 0.8)
 
 
 def _merge_action(keep: ActionItem, other: ActionItem) -> ActionItem:
