@@ -10,7 +10,7 @@ Measured at this commit (mean over meetings, all of them):
   decisions (10 meetings with gold): F1 0.350 (P 0.33, R 0.45); keyword baseline 0.250
   (AMI 7 meetings 0.356, ICSI 3 meetings 0.336; was 0.325 before opening recaps of the last
   meeting were left out and one speaker's back-to-back decisions made one item)
-  actions (7 AMI meetings with gold): F1 0.352 (P 0.30, R 0.45); keyword baseline 0.099
+  actions (7 AMI meetings with gold): F1 0.381 (P 0.33, R 0.50); keyword baseline 0.099
   (was 0.246 before passing remarks mid-meeting were left out: bench/relay_eval.py)
   owner accuracy on matched AMI actions, role profiles: 4 of 4
 These fall short of the issue's targets (0.40); the floors below keep what we have.
@@ -42,10 +42,11 @@ def test_decisions_beat_the_keyword_baseline(figures: dict) -> None:
 
 
 def test_actions_beat_the_keyword_baseline(figures: dict) -> None:
-    # AMI actions (CC BY 4.0): measured F1 0.352 against baseline 0.099
+    # AMI actions (CC BY 4.0): measured F1 0.381 against baseline 0.099 (0.352 before
+    # progressive assignments, "you'll be working on...", counted)
     assert figures["meetings_actions"] == 7
     assert figures["actions_f1"] > 2 * figures["actions_base_f1"]
-    assert figures["actions_f1"] >= 0.33
+    assert figures["actions_f1"] >= 0.36
 
 
 def test_owners_of_matched_actions(figures: dict) -> None:

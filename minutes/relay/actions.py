@@ -345,8 +345,12 @@ def read_new(state: State, k: int, sentence: Sentence) -> list[Found]:
         for m in pattern.finditer(toks):
             if _embedded(toks, m.start()):
                 continue
-            if re.match(r"(?:be able to|be [a-z]+ing)\b", toks[m.end():]):
-                continue  # "I'll be able to...", "I should be writing this down"
+            if re.match(r"be able to\b", toks[m.end():]) or (
+                    re.match(r"be [a-z]+ing\b", toks[m.end():]) and who != "you"):
+                # "I'll be able to...", "I should be writing this down": commentary. Said
+                # to someone, the progressive hands out work: "you'll be working on the
+                # casing" (common practice of chairs assigning the next phase)
+                continue
             if who == "we" and re.search(r"(?:^|\s)(?:maybe|perhaps|probably)\s",
                                          toks[: m.start() + 1]):
                 continue
