@@ -7,9 +7,11 @@ the keyword baseline are those of bench/relay_eval.py: an item is right when
 one of its evidence cues is a linked act or within 15 s of one.
 
 Measured at this commit (mean over meetings, all of them):
-  decisions (10 meetings with gold): F1 0.350 (P 0.33, R 0.45); keyword baseline 0.250
-  (AMI 7 meetings 0.356, ICSI 3 meetings 0.336; was 0.325 before opening recaps of the last
-  meeting were left out and one speaker's back-to-back decisions made one item)
+  decisions (10 meetings with gold): F1 0.389 (P 0.35, R 0.54); keyword baseline 0.250
+  (AMI 7 meetings 0.41, ICSI 3 meetings 0.336. 0.350 before "we want the..." statements
+  were read as the group's choice: AMI rose, the ICSI meetings, held out, stayed exactly
+  as they were. 0.325 before opening recaps of the last meeting were left out and one
+  speaker's back-to-back decisions made one item)
   actions (7 AMI meetings with gold): F1 0.381 (P 0.33, R 0.50); keyword baseline 0.099
   (was 0.246 before passing remarks mid-meeting were left out: bench/relay_eval.py)
   owner accuracy on matched AMI actions, role profiles: 5 of 5
@@ -35,10 +37,10 @@ def figures(evaldata: Path) -> dict:
 
 
 def test_decisions_beat_the_keyword_baseline(figures: dict) -> None:
-    # AMI + ICSI decisions (CC BY 4.0): measured F1 0.350 against baseline 0.250
+    # AMI + ICSI decisions (CC BY 4.0): measured F1 0.389 against baseline 0.250
     assert figures["meetings_decisions"] == 10
     assert figures["decisions_f1"] > figures["decisions_base_f1"] + 0.08
-    assert figures["decisions_f1"] >= 0.34
+    assert figures["decisions_f1"] >= 0.37
 
 
 def test_actions_beat_the_keyword_baseline(figures: dict) -> None:

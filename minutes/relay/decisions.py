@@ -40,6 +40,11 @@ EXPLICIT = re.compile(
     r"|(?:^|\s)we (?:'ll|will) (?:go ahead and |definitely )?(?:use|have|include|keep|"
     r"take) (?=the |a |an )"
     r"|(?:^|\s)so (?:it 's|it is|it 'll be|it will be) (?:going to be |gon na be )(?=the |a |an )"
+    # "we want the buttons big", "we don't want it to glow": the group stating what its
+    # product or plan shall be is the choice itself (in planning talk the settled
+    # requirement is rarely marked "decided"); a wish about the world ("we want people
+    # to come") has no object of ours and is left out by the lookahead
+    r"|(?:^|\s)we (?:do n't |definitely |just )?want (?=the |a |an |it to |to have |to use )"
 )
 # an explicit "agreed", "that's settled": settles the proposal on the table
 SETTLES = re.compile(
