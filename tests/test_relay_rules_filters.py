@@ -167,3 +167,10 @@ def test_same_verb_different_objects_are_two_tasks_and_repeats_merge() -> None:
                             task("bring back the staffing plan and the full cost breakdown"))
     assert _same_action(task("send the revised lease to the landlord"),
                         task("send the lease to the landlord"))
+
+
+def test_we_want_the_thing_is_a_choice_but_a_wish_about_people_is_not() -> None:
+    ledger = run([("Kim Lee", "Okay, so we want the buttons to be big and rubbery."),
+                  ("Priya Shah", "Yeah."),
+                  ("Tom Brandt", "We want people to come back to the shop.")])
+    assert [d.text for d in ledger.decisions] == ["The buttons to be big and rubbery"]
