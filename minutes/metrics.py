@@ -68,15 +68,22 @@ def _window_counts(gaps: list[int], k: int) -> list[int]:
     return counts
 
 
+def _probes(
+    reference: Sequence[Hashable], hypothesis: Sequence[Hashable], k: int | None
+) -> tuple[list[int], list[int]]:
+    """Return the boundary count in each probe window of the reference and the hypothesis."""
+    k = _check(reference, hypothesis, k)
+    return (_window_counts(boundaries_of(reference), k),
+            _window_counts(boundaries_of(hypothesis), k))
+
+
 def pk(
     reference: Sequence[Hashable], hypothesis: Sequence[Hashable], k: int | None = None
 ) -> float:
     """Return Pk: the share of probes ``k`` units apart where the segmentations disagree."""
     if len(reference) < 2 and len(reference) == len(hypothesis):
         return 0.0
-    k = _check(reference, hypothesis, k)
-    ref = _window_counts(boundaries_of(reference), k)
-    hyp = _window_counts(boundaries_of(hypothesis), k)
+    ref, hyp = _probes(reference, hypothesis, k)
     return sum((r > 0) != (h > 0) for r, h in zip(ref, hyp, strict=True)) / len(ref)
 
 
@@ -86,7 +93,5 @@ def windowdiff(
     """Return WindowDiff: the share of probes whose boundary counts differ."""
     if len(reference) < 2 and len(reference) == len(hypothesis):
         return 0.0
-    k = _check(reference, hypothesis, k)
-    ref = _window_counts(boundaries_of(reference), k)
-    hyp = _window_counts(boundaries_of(hypothesis), k)
+    ref, hyp = _probes(reference, hypothesis, k)
     return sum(r != h for r, h in zip(ref, hyp, strict=True)) / len(ref)
