@@ -174,3 +174,27 @@ def test_we_want_the_thing_is_a_choice_but_a_wish_about_people_is_not() -> None:
                   ("Priya Shah", "Yeah."),
                   ("Tom Brandt", "We want people to come back to the shop.")])
     assert [d.text for d in ledger.decisions] == ["The buttons to be big and rubbery"]
+
+
+def test_ordering_this_meetings_business_is_not_a_decision() -> None:
+    # who presents when, the next meeting's time and note-taking run the meeting; the
+    # minutes record what was decided on its business (common practice)
+    ledger = run([("Kim Lee", "So we'll have the three presentations first."),
+                  ("Priya Shah", "Okay."),
+                  ("Kim Lee", "Let's watch Tom's presentation first then."),
+                  ("Tom Brandt", "Yeah."),
+                  ("Kim Lee", "The next meeting's going to be in thirty minutes."),
+                  ("Priya Shah", "Yep."),
+                  ("Tom Brandt", "Should we use rubber buttons?"),
+                  ("Priya Shah", "Yeah, fine by me.")])
+    assert [d.text for d in ledger.decisions] == ["Use rubber buttons"]
+
+
+def test_a_requirement_names_a_thing_not_a_speaker() -> None:
+    # "the first I will present..." is someone taking the floor; "the remote should be
+    # simple" states what the product must be
+    ledger = run([("Kim Lee", "The first I will present the function design."),
+                  ("Priya Shah", "Okay."),
+                  ("Tom Brandt", "The remote should be simple."),
+                  ("Priya Shah", "Yeah.")])
+    assert [d.text for d in ledger.decisions] == ["The remote should be simple"]

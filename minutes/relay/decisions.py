@@ -84,7 +84,8 @@ PROPOSAL = re.compile(
 # what the thing under discussion must be: "the remote should be simple", "it has to be soft";
 # with a pronoun subject only the modals of obligation count ("it'll be cleaner" is a guess)
 REQUIREMENT = re.compile(
-    r"(?:^|\s)(?P<np>the [a-z_-]+(?: [a-z_-]+)?|our [a-z_-]+(?: [a-z_-]+)?) (?:should|must|has to|"
+    r"(?:^|\s)(?P<np>(?:the|our)(?: (?!(?:i|you|we|he|she|they|it)\s)[a-z_-]+){1,2}) "
+    r"(?:should|must|has to|"
     r"have to|will|'ll|'s going to|'s gon na|is going to|is gon na|needs to|need to|should n't|"
     r"must n't|wo n't|will not|can not|ca n't) (?=[a-z])"
     r"|(?:^|\s)(?P<pn>it|this|that|they) (?:should|must|has to|have to|needs to|need to|should n't|"
@@ -115,6 +116,15 @@ REJECT = re.compile(
     r"the best)|"
     r"that wo n't work|that will not work|i would n't|i would rather|i 'd rather|i prefer|"
     r"we ca n't|we can not|we should n't|let 's not|too (?:expensive|much|risky))"
+)
+# Talk that orders the business of this meeting ("let's watch Paul's presentation first", "we'll
+# have the three presentations", "the next meeting's in thirty minutes", "make notes of this")
+# is the agenda at work, not a decision on the business the minutes record (common practice:
+# minutes record what was decided on the matters before the meeting, not who spoke when).
+ORDER_OF_BUSINESS = re.compile(
+    r"\b(?:presentations?|to present|agenda|slides?|take notes|(?:make|making|keep) notes|"
+    r"minutes of (?:the|this|last)|(?:the|our) next meeting (?:'s|is|will)|individual work|"
+    r"(?:a|the|our) (?:short |quick |coffee |lunch |tea )?break)\b"
 )
 # talk verbs that can still carry a decision ("let's use the red one", "we'll keep it")
 DECIDING_VERBS = frozenset("go use have keep make take get put do add give try".split())
@@ -153,6 +163,11 @@ def _decision_text(sentence: Sentence, offset: int, cue: str = "", *, talk: bool
     if len(content_stems(text)) < 1 or len(text.split()) < 2:
         return ""
     return capitalise(text)
+
+
+def orders_business(text: str) -> bool:
+    """Return True when a decision's text orders this meeting's business (``ORDER_OF_BUSINESS``)."""
+    return bool(ORDER_OF_BUSINESS.search(text.lower().replace("'s", " 's")))
 
 
 def agrees(turn: Turn) -> bool:
@@ -249,6 +264,9 @@ def read(state: State, k: int) -> None:
                 state.apply([Update(pending.id, Change("accepted", text or pending.text, ev))])
                 state.claim(sentence)
                 continue
+            if text and orders_business(text):
+                state.claim(sentence)
+                continue
             if text and _duplicate(state, text, now) is None:
                 state.apply([Add(Decision("", text, ev.start, turn.speaker, (ev,)))])
                 state.claim(sentence)
@@ -266,6 +284,9 @@ def read(state: State, k: int) -> None:
                 m = None
             if m:  # the whole clause: "The feel of the material has to be spongy"
                 text = capitalise(_clause_from(sentence, m.start()))
+        if m and text and orders_business(text):
+            state.claim(sentence)
+            continue
         if m and text and content_stems(text) and _duplicate(state, text, now) is None \
                 and _matching_proposal(state, text, now) is None:
             ev = evidence(turn.utterance, sentence.text)
