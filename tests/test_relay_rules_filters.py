@@ -198,3 +198,13 @@ def test_a_requirement_names_a_thing_not_a_speaker() -> None:
                   ("Tom Brandt", "The remote should be simple."),
                   ("Priya Shah", "Yeah.")])
     assert [d.text for d in ledger.decisions] == ["The remote should be simple"]
+
+
+def test_a_task_with_nothing_to_act_on_is_not_an_item() -> None:
+    # "I'll paint and paint" and "can you separate these" are about the thing in hand;
+    # "email her" names whom to write to, so it stays
+    ledger = run([("Kim Lee", "Okay, and I'll paint and paint."),
+                  ("Priya Shah", "Tom, can you separate these uh these?"),
+                  ("Tom Brandt", "Sure."),
+                  ("Priya Shah", "I'll email her by Friday.")])
+    assert [a.task for a in ledger.actions] == ["email her"]

@@ -277,6 +277,18 @@ def habitual(state: State, k: int, sentence: Sentence) -> bool:
     return any(HABITUAL.search(" " + u.text.lower().replace(",", " ") + " ") for u in near)
 
 
+# what is left of a task when it names nothing to act on ("I'll paint and paint", "can you
+# separate these uh these"): the thing in hand, not an item to carry
+_IN_HAND = frozenset("these those and or again too then".split())
+
+
+def _nothing_to_act_on(task: str, verb: Token) -> bool:
+    """Return True when a task is its verb alone, or its verb and the things in hand."""
+    forms = {verb.lower_, verb.lemma_.lower()}
+    rest = [w for w in task.lower().split()[1:] if w not in forms]
+    return all(w in _IN_HAND for w in rest)
+
+
 def _immediate(task: str, due: str | None, due_text: str) -> bool:
     """Return True for talk about the next minute ("I'll just go over it quickly")."""
     if due or due_text:
@@ -413,6 +425,8 @@ def read_new(state: State, k: int, sentence: Sentence) -> list[Found]:
         if need_work and not pronoun and stem(verb.lemma_.lower()) not in {stem(v) for v in verbs}:
             continue
         if not content_stems(task) and not pronoun:
+            continue
+        if _nothing_to_act_on(task, verb):
             continue
         if found and found[-1].owner == owner and found[-1].task.endswith(task):
             continue
