@@ -208,3 +208,11 @@ def test_a_task_with_nothing_to_act_on_is_not_an_item() -> None:
                   ("Tom Brandt", "Sure."),
                   ("Priya Shah", "I'll email her by Friday.")])
     assert [a.task for a in ledger.actions] == ["email her"]
+
+
+def test_an_offer_on_a_condition_is_not_a_commitment() -> None:
+    ledger = run([("Kim Lee", "I'll keep it simple, if there's any more information I can email "
+                              "you the tables."),
+                  ("Priya Shah", "Okay."),
+                  ("Tom Brandt", "I'll email you the tables by Friday.")])
+    assert [(a.owner, a.task) for a in ledger.actions] == [("Tom Brandt", "email you the tables")]

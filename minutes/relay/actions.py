@@ -302,9 +302,13 @@ _DENIAL = re.compile(r"(?:n't|not|never) (?:think|know|believe|say|sure|mean)\b|
 
 
 def _embedded(toks: str, start: int) -> bool:
-    """Return True when the cue sits in a subordinate clause or a denial ("I don't think we...")."""
+    """Return True when the cue sits in a subordinate clause or a denial ("I don't think we..."),
+    or follows a condition in its clause ("if there's any more, I can email you"): an offer
+    on a condition is not yet a commitment."""
     before = toks[:start].rstrip()
-    return bool(_EMBEDDING.search(before) or _DENIAL.search(before))
+    clause = before.rsplit(" , ", 1)[-1]
+    return bool(_EMBEDDING.search(before) or _DENIAL.search(before)
+                or re.search(r"(?:^|\s)if\s", clause))
 
 
 def _clause_due(state: State, sentence: Sentence, start: int, end: int
