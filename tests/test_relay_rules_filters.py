@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+import pytest
 from test_relay_rules import meeting, run
 
 from minutes.model import (
@@ -216,3 +217,27 @@ def test_an_offer_on_a_condition_is_not_a_commitment() -> None:
                   ("Priya Shah", "Okay."),
                   ("Tom Brandt", "I'll email you the tables by Friday.")])
     assert [(a.owner, a.task) for a in ledger.actions] == [("Tom Brandt", "email you the tables")]
+
+
+def test_we_dont_really_want_and_happy_to_go_ahead() -> None:
+    # "we don't really want to use X" states the group's choice; "(are) we happy to go
+    # ahead?" asks the room, and a "yeah" settles it (spoken English drops the "are")
+    ledger = run([("Kim Lee", "So we don't really want to use the teletext anymore."),
+                  ("Priya Shah", "Mm-hmm."),
+                  ("Tom Brandt", "We happy to go ahead with the flip case?"),
+                  ("Priya Shah", "Yeah.")])
+    assert [d.text for d in ledger.decisions] == ["We don't want to use the teletext anymore",
+                                                  "Go ahead with the flip case"]
+
+
+@pytest.mark.parametrize(("said", "text"), [
+    ("We've decided not to use the teletext.", "We've decided not to use the teletext"),
+    ("And we don't want it to cost more than twelve Euros.",
+     "We don't want it to cost more than twelve Euros"),
+    ("We agreed to not have a screen.", "We agreed to not have a screen"),
+    ("We've decided to use the teletext.", "Use the teletext"),
+])
+def test_a_negated_decision_keeps_its_negation(said: str, text: str) -> None:
+    # a verb phrase cut after the cue would turn "decided not to use" into "use"
+    ledger = run([("Kim Lee", said), ("Priya Shah", "Yeah.")])
+    assert [d.text for d in ledger.decisions] == [text]

@@ -44,7 +44,8 @@ EXPLICIT = re.compile(
     # product or plan shall be is the choice itself (in planning talk the settled
     # requirement is rarely marked "decided"); a wish about the world ("we want people
     # to come") has no object of ours and is left out by the lookahead
-    r"|(?:^|\s)we (?:do n't |definitely |just )?want (?=the |a |an |it to |to have |to use )"
+    r"|(?:^|\s)we (?:do n't |definitely |just |really |do n't really )?want (?=the |a |an |it to |"
+    r"to have |to use )"
 )
 # an explicit "agreed", "that's settled": settles the proposal on the table
 SETTLES = re.compile(
@@ -73,7 +74,8 @@ PROPOSAL = re.compile(
     r"finish|wrap|recap|summarise|summarize|do (?:this|that) quickly|check|come back|leave|skip|"
     r"take a (?:look|break|minute|second)|keep going|carry on|turn|break)"
     r"|(?:^|\s)do we (?:want|agree|all agree|need) to "
-    r"|(?:^|\s)(?:are we|is everyone|is everybody|everyone|everybody) (?:all )?(?:happy|okay|ok|"
+    r"|(?:^|\s)(?:are we|is everyone|is everybody|everyone|everybody|^(?:so )?we) (?:all )?"
+    r"(?:happy|okay|ok|"
     r"agreed|"
     r"fine|good|alright|all right|in agreement) (?:with|to|on|that) "
     r"|(?:^|\s)are we (?:going|gon na) (?:to )?(?:go )?(?:with|for) "
@@ -155,7 +157,16 @@ _VERB_IN_CUE = re.compile(r"(?:go|going|gone|stick|sticking|settle|settling|opte
                           r"keep|take) (?:with |for |on )?$")
 
 
+_NEGATION = re.compile(r"(?:^|\s)(?:not|n't|never|no longer)(?:\s|$)")
+
+
 def _decision_text(sentence: Sentence, offset: int, cue: str = "", *, talk: bool = True) -> str:
+    # "we don't want to use the teletext", "we've decided not to": a verb phrase would drop
+    # the negation and say the opposite, so a negated decision keeps the speaker's clause
+    ahead = " ".join(sentence.toks[offset:].split()[:2])
+    if _NEGATION.search(cue) or _NEGATION.search(ahead):
+        text = _clause_from(sentence, offset - len(cue))
+        return capitalise(text) if len(content_stems(text)) >= 2 else ""
     m = _VERB_IN_CUE.search(cue)
     if m:  # "let's go with the red one": keep "go with" in the text
         offset = offset - len(cue) + m.start()
