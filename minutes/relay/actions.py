@@ -289,6 +289,14 @@ def _nothing_to_act_on(task: str, verb: Token) -> bool:
     return all(w in _IN_HAND for w in rest)
 
 
+def _negated(sentence: Sentence, start: int, verb: Token) -> bool:
+    """Return True when a negation stands between the cue and the task's verb, or on the verb."""
+    between = [t.lower_ for t in sentence.doc[start:verb.i]]
+    if any(w in ("not", "n't", "never") for w in between) or "no longer" in " ".join(between):
+        return True
+    return any(c.dep_ == "neg" for c in verb.children)
+
+
 def _immediate(task: str, due: str | None, due_text: str) -> bool:
     """Return True for talk about the next minute ("I'll just go over it quickly")."""
     if due or due_text:
@@ -432,6 +440,8 @@ def read_new(state: State, k: int, sentence: Sentence) -> list[Found]:
             continue
         if _nothing_to_act_on(task, verb):
             continue
+        if _negated(sentence, start, verb):
+            continue  # "I'll probably not send it": no commitment, and never its opposite
         if found and found[-1].owner == owner and found[-1].task.endswith(task):
             continue
         if habitual(state, k, sentence):
@@ -556,6 +566,9 @@ def read_update(state: State, k: int, sentence: Sentence) -> list[Op]:
     if m and re.search(r"\bdrop (?:(?:it|that|this|them|him|her) )?(?:in|off|round|by|over|"
                        r"at)\b", toks):
         m = None  # "I'll drop it in to their office": delivering, not dropping
+    if m and re.search(r"(?:^|\s)(?:n't|not|never)(?: (?:just|ever|you|we))? $",
+                       toks[: m.start() + 1]):
+        m = None  # "please don't forget the K", "I won't forget": a reminder, not a drop
     if m and not question:
         what = next(g for g in m.groups() if g)
         words = content_stems(what)
