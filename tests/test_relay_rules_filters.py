@@ -241,3 +241,31 @@ def test_a_negated_decision_keeps_its_negation(said: str, text: str) -> None:
     # a verb phrase cut after the cue would turn "decided not to use" into "use"
     ledger = run([("Kim Lee", said), ("Priya Shah", "Yeah.")])
     assert [d.text for d in ledger.decisions] == [text]
+
+
+@pytest.mark.parametrize("said", [
+    "I'll probably not send the quote to the landlord by Friday.",
+    "Priya, you'll also not need to call the printer by Friday.",
+    "Tom is going to no longer order the paper by Friday.",
+    "Please don't forget the deposit.",
+])
+def test_a_negated_commitment_is_no_action(said: str) -> None:
+    # cut after the cue, the verb phrase would say the opposite of what was said
+    ledger = run([("Kim Lee", said), ("Priya Shah", "Yeah.")])
+    assert ledger.actions == ()
+
+
+def test_a_reminder_not_to_forget_an_item_does_not_drop_it() -> None:
+    ledger = run([("Kim Lee", "Tom, can you pay the shelving deposit by Friday?"),
+                  ("Tom Brandt", "Sure."),
+                  ("Priya Shah", "Please don't forget the deposit."),
+                  ("Tom Brandt", "I won't forget the deposit.")])
+    assert [(a.task, a.status) for a in ledger.actions] == [("pay the shelving deposit", "open")]
+
+
+def test_a_name_inside_the_task_stays_and_a_vocative_goes() -> None:
+    ledger = run([("Kim Lee", "Tom, can you pay the Kilnworth deposit by Friday?"),
+                  ("Tom Brandt", "Sure."),
+                  ("Priya Shah", "I'll email Colm the floor plan, Kim.")])
+    assert [a.task for a in ledger.actions] == ["pay the Kilnworth deposit",
+                                                "email Colm the floor plan"]

@@ -247,6 +247,19 @@ def phrase_tokens(verb: Token, *, stop_at: int | None = None) -> list[Token]:
     return keep
 
 
+def _vocative(tok: Token) -> bool:
+    """Return True when a name is said to someone ("send it, Tom"), not part of the task
+    ("pay the Kilnworth deposit", "email Colm")."""
+    in_task = tok.dep_ in ("compound", "dobj", "pobj", "dative", "poss", "nsubj")
+    return not in_task or tok.head.i == tok.i or _beside_comma(tok)
+
+
+def _beside_comma(tok: Token) -> bool:
+    doc = tok.doc
+    return (tok.i > 0 and doc[tok.i - 1].text == ",") or (
+        tok.i + 1 < len(doc) and doc[tok.i + 1].text in (",", ".", "?", "!"))
+
+
 def clean_phrase(tokens: Sequence[Token], *, drop_chars: Iterable[tuple[int, int]] = (),
                  drop_names: Iterable[str] = (), lemmatise_first: bool = True,
                  max_words: int = 18) -> str:
@@ -264,7 +277,7 @@ def clean_phrase(tokens: Sequence[Token], *, drop_chars: Iterable[tuple[int, int
         low = tok.lower_
         if k in skip or low in FILLER_WORDS and not (low == "like" and tok.pos_ in ("VERB", "ADP")):
             continue
-        if low in names or tok.is_punct and low not in ("-", "/", "&", "'s"):
+        if low in names and _vocative(tok) or tok.is_punct and low not in ("-", "/", "&", "'s"):
             continue
         if low.endswith("_") and low.replace("_", "").isalpha() and len(low) <= 8:
             low = low.replace("_", "")  # AMI spells letters out: "L_C_D_" -> "lcd"
