@@ -340,6 +340,17 @@ def evaluate(names: Sequence[tuple[str, str]] | None = None, *, verbose: bool = 
               f"{owner_total} (role profiles); {f['owner_accuracy_no_profiles']:.3f} of "
               f"{plain_total} (no profiles)")
         print(f"gold sentences with no linked act, left out: {f['unlinked_gold']}")
+        for corpus in ("ami", "icsi"):
+            rs = [r for r in dec_rows if r["corpus"] == corpus]
+            if rs:
+                print(f"decisions F1, {corpus.upper()} only ({len(rs)} meetings): "
+                      f"{mean('dec', rs):.3f}")
+        # how much one meeting moves the mean: the samples are small (1-8 gold items each)
+        for key, rs in (("dec", dec_rows), ("act", act_rows)):
+            if len(rs) > 1:
+                loo = [mean(key, [r for r in rs if r is not left]) for left in rs]
+                print(f"{'decisions' if key == 'dec' else 'actions'} F1 with one meeting left "
+                      f"out: {min(loo):.3f}-{max(loo):.3f}")
     return figures
 
 
