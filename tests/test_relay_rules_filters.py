@@ -269,3 +269,11 @@ def test_a_name_inside_the_task_stays_and_a_vocative_goes() -> None:
                   ("Priya Shah", "I'll email Colm the floor plan, Kim.")])
     assert [a.task for a in ledger.actions] == ["pay the Kilnworth deposit",
                                                 "email Colm the floor plan"]
+
+
+def test_me_in_a_task_handed_to_someone_else_names_the_speaker() -> None:
+    ledger = run([("Kim Lee", "Priya, can you send me the floor plan by Friday?"),
+                  ("Priya Shah", "Sure."),
+                  ("Tom Brandt", "And I'll send my notes round by Friday.")])
+    assert [(a.owner, a.task) for a in ledger.actions] == [
+        ("Priya Shah", "send Kim Lee the floor plan"), ("Tom Brandt", "send my notes round")]

@@ -289,6 +289,16 @@ def _nothing_to_act_on(task: str, verb: Token) -> bool:
     return all(w in _IN_HAND for w in rest)
 
 
+def _speaker_for_me(task: str, speaker: str) -> str:
+    """Return a task handed to someone else with the speaker named for "me" and "my".
+
+    "someone needs to let me in", said by Colm and taken by Hana, is "let Colm in" in
+    the minutes: read later, "me" would be whoever reads it.
+    """
+    task = re.sub(r"\b(?:me|myself)\b", speaker, task)
+    return re.sub(r"\bmy\b", f"{speaker}'s", task)
+
+
 def _negated(sentence: Sentence, start: int, verb: Token) -> bool:
     """Return True when a negation stands between the cue and the task's verb, or on the verb."""
     between = [t.lower_ for t in sentence.doc[start:verb.i]]
@@ -448,6 +458,8 @@ def read_new(state: State, k: int, sentence: Sentence) -> list[Found]:
             continue
         used.add(verb.i)
         clause = sentence.doc[start:end].text
+        if owner != turn.speaker:
+            task = _speaker_for_me(task, turn.speaker)
         found.append(Found(task, owner, due, due_text, clause, verb.lemma_.lower()))
     return found
 
