@@ -277,3 +277,13 @@ def test_me_in_a_task_handed_to_someone_else_names_the_speaker() -> None:
                   ("Tom Brandt", "And I'll send my notes round by Friday.")])
     assert [(a.owner, a.task) for a in ledger.actions] == [
         ("Priya Shah", "send Kim Lee the floor plan"), ("Tom Brandt", "send my notes round")]
+
+
+def test_a_lukewarm_answer_does_not_agree_to_a_proposal() -> None:
+    # "that's a possibility", "maybe": the room has not agreed yet (common practice: a
+    # decision by consensus needs clear assent)
+    ledger = run([("Kim Lee", "What about integrating a scroll wheel on this side?"),
+                  ("Priya Shah", "Yeah, uh, that's a possibility."),
+                  ("Tom Brandt", "Should we use rubber buttons?"),
+                  ("Priya Shah", "Yeah, maybe, if it's not too expensive.")])
+    assert ledger.decisions == ()

@@ -110,7 +110,8 @@ AGREE = re.compile(
 AGREE_STRONG = re.compile(r"^(?:(?:um|uh|oh|well|so|mm|okay) ,? )*(?:okay|ok|alright|all right|"
                           r"right)"
                           r" ?[.!]?$")
-HEDGE = re.compile(r"\b(?:but|though|however|although|not sure|unless|depends)\b")
+HEDGE = re.compile(r"\b(?:but|though|however|although|not sure|unless|depends|maybe|perhaps|"
+                   r"possibly|a possibility|might)\b")
 REJECT = re.compile(
     r"^(?:(?:um|uh|oh|well|hmm|mm) ,? )*(?:no\b|nope|nah|i do n't think so|i 'm not sure|"
     r"not really|"
