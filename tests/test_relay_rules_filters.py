@@ -287,3 +287,11 @@ def test_a_lukewarm_answer_does_not_agree_to_a_proposal() -> None:
                   ("Tom Brandt", "Should we use rubber buttons?"),
                   ("Priya Shah", "Yeah, maybe, if it's not too expensive.")])
     assert ledger.decisions == ()
+
+
+def test_an_option_is_not_a_proposal_but_a_recommendation_is() -> None:
+    ledger = run([("Kim Lee", "In fact we could get the frequencies out of the synthesizer."),
+                  ("Priya Shah", "Yeah."),
+                  ("Tom Brandt", "I think we should use rubber buttons."),
+                  ("Priya Shah", "Yeah.")])
+    assert [d.text for d in ledger.decisions] == ["Use rubber buttons"]

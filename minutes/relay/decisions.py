@@ -59,8 +59,10 @@ PROPOSAL = re.compile(
     r"|(?:^|\s)(?:how|what) about (?:we |if we )?"
     r"|(?:^|\s)why do n't we (?:just )?"
     r"|(?:^|\s)i (?:would |'d )?(?:suggest|propose|recommend|move) (?:that )?(?:we )?"
-    r"|(?:^|\s)maybe we (?:should|could|can) "
-    r"|(?:^|\s)(?:i think |perhaps |so )?we (?:should|could|might) (?:maybe |probably |perhaps |"
+    r"|(?:^|\s)maybe we should "
+    # "we should use X" recommends; "we could use X" only names an option, and a "yeah"
+    # to an option is not yet a choice (the option becomes one through "let's", "we'll")
+    r"|(?:^|\s)(?:i think |perhaps |so )?we should (?:maybe |probably |perhaps |"
     r"also |just |definitely |all )?(?=go |use |have |do |make |get |include |put |keep |take |"
     r"try |"
     r"add |choose |pick |stick |offer |hold |move |set |fix |cut |drop |change |switch |buy |hire |"
