@@ -295,3 +295,10 @@ def test_an_option_is_not_a_proposal_but_a_recommendation_is() -> None:
                   ("Tom Brandt", "I think we should use rubber buttons."),
                   ("Priya Shah", "Yeah.")])
     assert [d.text for d in ledger.decisions] == ["Use rubber buttons"]
+
+
+def test_handing_the_floor_is_not_an_action() -> None:
+    ledger = run([("Kim Lee", "So I'll let Tom do his presentation."),
+                  ("Tom Brandt", "Thanks."),
+                  ("Kim Lee", "And I'll let the landlord know about the lease by Friday.")])
+    assert [a.task for a in ledger.actions] == ["let the landlord know about the lease"]

@@ -136,6 +136,9 @@ DROP = re.compile(
     r"|(?:^|\s)no need (?:to|for) (?P<what4>.+)"
 )
 IMMEDIATE = re.compile(r"\b(?:walk (?:me|us) through|let (?:you|us|them|everyone) go|"
+                       # the chair handing the floor: "I'll let you do your presentation"
+                       r"let [a-z]+(?: [a-z]+)? (?:to )?(?:do|give|start|begin|take) (?:your|his|"
+                       r"her|their|the) (?:presentation|talk|turn|bit|part)|"
                        r"(?:it|that|this) down|now|"
                        r"right now|first|quickly|briefly|here|at the moment|in a minute|"
                        r"in a second|in a sec|real quick|for a second|for a moment|on the board|"
