@@ -243,6 +243,13 @@ def test_a_negated_decision_keeps_its_negation(said: str, text: str) -> None:
     assert [d.text for d in ledger.decisions] == [text]
 
 
+def test_why_dont_we_is_a_proposal_not_a_negation() -> None:
+    ledger = run([("Kim Lee", "So why don't we do the supplier survey first?"),
+                  ("Priya Shah", "Yeah, fine by me.")])
+    assert [d.text for d in ledger.decisions] == ["Do the supplier survey first"]
+
+
+
 @pytest.mark.parametrize("said", [
     "I'll probably not send the quote to the landlord by Friday.",
     "Priya, you'll also not need to call the printer by Friday.",

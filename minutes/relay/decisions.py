@@ -167,7 +167,8 @@ def _decision_text(sentence: Sentence, offset: int, cue: str = "", *, talk: bool
     # "we don't want to use the teletext", "we've decided not to": a verb phrase would drop
     # the negation and say the opposite, so a negated decision keeps the speaker's clause
     ahead = " ".join(sentence.toks[offset:].split()[:2])
-    if _NEGATION.search(cue) or _NEGATION.search(ahead):
+    asked = re.sub(r"why (?:do n't|not) we", "", cue)  # "why don't we...": a proposal
+    if _NEGATION.search(asked) or _NEGATION.search(ahead):
         text = _clause_from(sentence, offset - len(cue))
         return capitalise(text) if len(content_stems(text)) >= 2 else ""
     m = _VERB_IN_CUE.search(cue)
