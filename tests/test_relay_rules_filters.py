@@ -309,3 +309,20 @@ def test_handing_the_floor_is_not_an_action() -> None:
                   ("Tom Brandt", "Thanks."),
                   ("Kim Lee", "And I'll let the landlord know about the lease by Friday.")])
     assert [a.task for a in ledger.actions] == ["let the landlord know about the lease"]
+
+
+def test_a_progressive_hand_over_reassigns_the_item() -> None:
+    ledger = run([("Kim Lee", "We need someone to print the barcode labels by Friday."),
+                  ("Tom Brandt", "I can do it, I'm at the main branch anyway."),
+                  ("Kim Lee", "Great, so Priya's taking the labels, still for Friday.")])
+    assert [(a.task, a.owner) for a in ledger.actions] == [("print the barcode labels",
+                                                            "Priya Shah")]
+
+
+def test_that_is_done_after_a_named_deed_refers_to_that_deed() -> None:
+    # "you sent the photos last week, so that's done": the photos, not the labels just
+    # reassigned
+    ledger = run([("Kim Lee", "Tom, can you print the barcode labels by Friday?"),
+                  ("Tom Brandt", "Sure."),
+                  ("Kim Lee", "And Priya, you sent the photos last week, so that's done already.")])
+    assert [(a.task, a.status) for a in ledger.actions] == [("print the barcode labels", "open")]

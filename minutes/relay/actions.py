@@ -82,9 +82,12 @@ TAKE = re.compile(
     r"'s going to|is going to|'s gon na|is gon na|'m going to|'m gon na|'d be happy to|"
     r"'m happy to|'ll be happy to|'s|is|'m) (?:(?:actually|instead|then|just|also|happily) )*"
     + TAKE_VERBS + r" (?:that|it|this|those|them|these|over|on)\b(?: one)?"
-    r"|(?:^|\s)(?P<who6>i|[a-z][a-z'_-]*) (?:'ll|will|can|should|'s going to|is going to|'s gon na|"
-    r"is gon na) (?:(?:actually|instead|then|just|also) )*(?:take (?:over )?|handle |do |cover |"
-    r"pick up |deal with )(?:the|that|this) (?P<obj>[a-z][a-z'_-]*(?: (?!still|instead|then|now|"
+    r"|(?:^|\s)(?P<who6>i|[a-z][a-z'_-]*) (?:(?:'ll|will|can|should|'s going to|is going to|"
+    r"'s gon na|is gon na) (?:(?:actually|instead|then|just|also) )*(?:take (?:over )?|handle |"
+    r"do |cover |pick up |deal with )"
+    # the progressive of a hand-over: "so Daniel's taking the labels"
+    r"|(?:'s|is|'m) (?:(?:actually|instead|then|now|also) )*(?:taking (?:over )?|handling |"
+    r"covering |picking up ))(?:the|that|this) (?P<obj>[a-z][a-z'_-]*(?: (?!still|instead|then|now|"
     r"before|by|and|on)[a-z][a-z'_-]*){0,4})"
     r"|(?:^|\s)(?:can|could|would|will) (?P<who7>you) (?:(?:please|maybe|also|just) )*(?:take|"
     r"handle|"
@@ -290,6 +293,13 @@ def _nothing_to_act_on(task: str, verb: Token) -> bool:
     forms = {verb.lower_, verb.lemma_.lower()}
     rest = [w for w in task.lower().split()[1:] if w not in forms]
     return all(w in _IN_HAND for w in rest)
+
+
+def _reported_before(sentence: Sentence, offset: int) -> bool:
+    """Return True when the sentence reports a deed with its object before ``offset``."""
+    end = sentence.token(offset)
+    return any(t.tag_ in ("VBD", "VBN") and any(c.dep_ == "dobj" for c in t.children)
+               for t in sentence.span if t.i < end)
 
 
 def _speaker_for_me(task: str, speaker: str) -> str:
@@ -607,6 +617,8 @@ def read_update(state: State, k: int, sentence: Sentence) -> list[Op]:
             words = _rest_stems(sentence, 0) - {"already", "done", "finish"}
             pronoun = bool(m.group("state")) or re.search(r"\b(?:it|that|this|them)\b",
                                                           toks[m.end(): m.end() + 12]) is not None
+            if m.group("state") and _reported_before(sentence, m.start()):
+                pronoun = False  # "you sent the photos, so that's done": "that" is the photos
             item = target(state, now, words, verb=verb, prefer_owner=who, pronoun_ok=pronoun,
                           context=context_stems(state, k, sentence))
             if item is not None and (verb == "" or item.task.split()[:1] and (
