@@ -36,14 +36,15 @@ WONDER = re.compile(r"(?:^|\s)(?:i wonder (?:if|whether|what|how|why|who)|does a
                     r"how|who))\b")
 NON_ANSWER = re.compile(
     r"^(?:(?:um|uh|well|hmm|mm|oh) ,? )*(?:i do n't know|dunno|no idea|not sure|i 'm not sure|"
-    r"good question|who knows|i have no idea|we 'll (?:have to )?(?:see|check|find out)|"
-    r"i 'll (?:have to )?(?:check|find out)|i ca n't remember|i forget|that 's a good question|"
+    r"(?:a )?(?:really |very )?good question|who knows|i have no idea|"
+    r"we 'll (?:have to )?(?:see|check|find out)|i 'll (?:have to )?(?:check|find out)|"
+    r"i ca n't remember|i forget|that 's a (?:really |very )?good question|"
     r"i was (?:going to|gon na) ask|i wondered that too|i 'm wondering)"
 )
 LATER = re.compile(r"(?:^|\s)(?:i 'd have to|i 'll have to|i would have to|i 'd need to|"
                    r"i 'll need to|"
                    r"i do n't (?:actually |really )?know|not sure|let me check|i can check|"
-                   r"i can find out|i 'll find out|i 'll check|i 'll look|"
+                   r"i can find out|i 'll find out|i 'll check|i 'll look (?:into|it up|that up)|"
                    r"we 'd have to check|we 'll have to check|no one knows|nobody knows)\b")
 LATER_CUE = re.compile(r"\b(?:to answer|about (?:the|your|that) question|the answer is|"
                        r"turns out|i checked|i found out|we found out|regarding|as for|i looked)\b")
@@ -64,11 +65,15 @@ def is_group_question(sentence: Sentence) -> bool:
         return False
     if not any(t.pos_ in ("VERB", "AUX") for t in sentence.span):
         return False  # "East of the river?": a fragment that adds to the question before
+    if not _asks(sentence) and not re.search(r"(?:^|\s)(?:what|who|which|when|where|why|how)\s",
+                                             toks):
+        return False  # "I'm fifty-three, since I was sixteen?": a rising statement
     return len(content_stems(toks)) >= 2
 
 
 ANSWER_START = re.compile(
     r"^(?:(?:um|uh|well|oh|so|mm) ,? )*(?:yes|no|yeah|yep|nope|sure|definitely|probably|maybe|"
+    r"both|neither|either|none|all of them|"
     r"i think|i believe|it 's|it is|they 're|they are|about|around|roughly|because|we (?:have|'ve|"
     r"can|could|should)|that 's|there 's|there are|you can|you could|i would|i 'd|not)\b"
 )
@@ -79,10 +84,34 @@ ANSWER_ENTS = frozenset({"MONEY", "CARDINAL", "DATE", "TIME", "PERCENT", "QUANTI
                          "ORG", "GPE"})
 
 
-def _answer_kind(turn: Turn, question: frozenset[str]) -> str:
+# the words a sentence opens with when it asks something; "I'm fifty-three, since I was,
+# God, sixteen?" ends on a rising "?" in the captions but tells
+_ASKING = re.compile(r"^(?:(?:um|uh|so|and|but|oh|okay|well|like|right) ,? )*(?:what|who|whom|"
+                     r"whose|which|when|where|why|how|is|are|was|were|am|do|does|did|can|could|"
+                     r"would|will|shall|should|may|might|have|has|had|is n't|are n't|do n't|"
+                     r"does n't|did n't|ca n't|wo n't|would n't|should n't|any|anyone|anybody)\b")
+
+
+def _asks(sentence: Sentence) -> bool:
+    """Return True for a sentence that asks: a "?" and the opening of a question."""
+    return sentence.is_question and bool(_ASKING.search(sentence.toks))
+
+
+# "Has anyone asked the council about a loading bay?" asks whether something was done; a
+# bare "No." answers the poll and leaves the matter open. "No. Wen said they're still
+# waiting for the committee." brings news: that is an answer.
+POLL = re.compile(r"^(?:(?:um|uh|so|and|but|oh|okay|well) ,? )*(?:has|have|did) (?:anyone|"
+                  r"anybody|someone|somebody|any of us|we|you)\b")
+BARE_NO = re.compile(r"^(?:(?:oh|um|uh|hm|hmm|mm|well|no|nope|not yet|nobody|no one|not me|"
+                     r"i have n't|we have n't|i did n't|we did n't) ?[.,!]? ?)+$")
+
+
+def _answer_kind(turn: Turn, question: frozenset[str], poll: bool = False) -> str:
     """Return "answer", "non-answer" or "" (not a reply) for a turn after a question."""
     if not turn.sentences:
         return ""
+    if poll and BARE_NO.search(" ".join(s.toks for s in turn.sentences)):
+        return "non-answer"
     first = turn.sentences[0]
     if len(turn.sentences) > 1 and not content_stems(first.toks):
         first = turn.sentences[1]  # "Hm. The system has postcodes..."
@@ -96,9 +125,9 @@ def _answer_kind(turn: Turn, question: frozenset[str]) -> str:
         return "answer"
     if any(ent.label_ in ANSWER_ENTS for ent in first.span.ents):
         return "answer"
-    lead = " ".join(s.toks for s in turn.sentences[:2] if not s.is_question)
+    lead = " ".join(s.toks for s in turn.sentences[:3] if not _asks(s))  # "God. Hm. Fewer..."
     words = [w for w in lead.split() if w[:1].isalnum() or "'" in w]
-    if len(words) >= 3 and not first.is_question and not PROPOSING.search(first.toks):
+    if len(words) >= 3 and not _asks(first) and not PROPOSING.search(first.toks):
         return "answer"  # a statement in reply: take it as the answer
     return ""
 
@@ -118,13 +147,18 @@ def read(state: State, k: int) -> None:
                      and now - question.evidence[0].end <= IMMEDIATE_SECONDS
                      and not _asked_since(state, asked_at, k))
         q_words = content_stems(question.text)
-        kind = _answer_kind(turn, q_words)
+        poll = bool(POLL.search(question.text.lower()))
+        kind = _answer_kind(_run_from(state, k), q_words, poll)
+        if immediate and any(t.speaker == turn.speaker and t.utterance.index > asked_at
+                             and _answer_kind(t, q_words, poll) == "non-answer"
+                             for t in state.turns[:k]):
+            immediate = False  # "...I'd have to check the wording." / "Anyway.": still open
         for sentence in turn.sentences:
             if sentence.is_question:
                 continue
             shared = overlap(q_words, content_stems(sentence.toks))
             late = shared >= 0.5 and len(q_words & content_stems(sentence.toks)) >= 2 and (
-                LATER_CUE.search(sentence.toks) or shared >= 0.75)
+                LATER_CUE.search(sentence.toks) or shared >= 0.75) and kind != "non-answer"
             if (immediate and kind == "answer" and question.history[-1].kind != "reopened"
                     and _asked_in_segment(state, asked_at)) or late:
                 ev = evidence(turn.utterance, sentence.text)
@@ -134,14 +168,15 @@ def read(state: State, k: int) -> None:
     for sentence in turn.sentences:
         if state.is_claimed(sentence) or not is_group_question(sentence):
             continue
-        replies = [t for t in state.following(k, limit=IMMEDIATE_TURNS, seconds=IMMEDIATE_SECONDS)
-                   if t.speaker != turn.speaker]
+        replies = _runs([t for t in state.following(k, limit=IMMEDIATE_TURNS + 2,
+                                                    seconds=IMMEDIATE_SECONDS)
+                         if t.speaker != turn.speaker])[:IMMEDIATE_TURNS]
         if sentence.number < len(turn.sentences) - 1 and not replies:
             continue  # the speaker goes on: a rhetorical question, or one they answer themselves
         q_words = content_stems(sentence.toks)
         first = ""
         for reply in replies:
-            first = _answer_kind(reply, q_words)
+            first = _answer_kind(reply, q_words, bool(POLL.search(sentence.toks)))
             short_back = all(s.is_question and len(s.toks.split()) <= 5 for s in reply.sentences)
             if first or (any(s.is_question for s in reply.sentences) and not short_back):
                 break  # answered, or a new question takes the floor ("When's opening?" does not)
@@ -154,6 +189,30 @@ def read(state: State, k: int) -> None:
         ev = evidence(turn.utterance, sentence.text)
         state.apply([Add(Question("", text, turn.speaker, False, ev.start, (ev,)))])
         state.claim(sentence)
+
+
+def _runs(turns: list[Turn]) -> list[Turn]:
+    """Return the turns with each run of one speaker's consecutive turns read as one reply:
+    "The public liability is for the public." / "...but I'd have to check the wording." is
+    one answer that is not yet an answer."""
+    out: list[Turn] = []
+    for turn in turns:
+        if out and out[-1].speaker == turn.speaker:
+            out[-1] = Turn(out[-1].utterance, out[-1].doc, out[-1].sentences + turn.sentences)
+        else:
+            out.append(turn)
+    return out
+
+
+def _run_from(state: State, k: int) -> Turn:
+    """Return turn ``k`` with the same speaker's turns that follow it read as one."""
+    nxt = state.following(k, limit=3, seconds=IMMEDIATE_SECONDS)
+    run = [state.turns[k]]
+    for turn in nxt:
+        if turn.speaker != run[0].speaker:
+            break
+        run.append(turn)
+    return _runs(run)[0]
 
 
 def _asked_since(state: State, asked_at: int, k: int) -> bool:
