@@ -116,8 +116,9 @@ def say(text: str, person: str, out: Path, reverb: bool = False) -> None:
     subprocess.run(["espeak-ng", "-v", voice, "-p", str(pitch), "-s", str(speed), "-w",
                     str(raw), text], check=True, capture_output=True)
     effects = ["reverb", "50", "50", "100"] if reverb else []
-    subprocess.run(["sox", str(raw), "-r", "16000", "-c", "1", "-b", "16", str(out), *effects],
-                   check=True, capture_output=True)
+    # -R: repeatable dither, so the same seed gives the same audio, bit for bit
+    subprocess.run(["sox", "-R", str(raw), "-r", "16000", "-c", "1", "-b", "16", str(out),
+                    *effects], check=True, capture_output=True)
     raw.unlink()
 
 

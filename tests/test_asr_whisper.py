@@ -73,7 +73,7 @@ def speech(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, list[tuple[f
     folder = tmp_path_factory.mktemp("speech")
     files, spans, t = [], [], 0.0
     gap = folder / "gap.wav"
-    subprocess.run(["sox", "-n", "-r", "22050", "-c", "1", "-b", "16", str(gap), "trim", "0",
+    subprocess.run(["sox", "-R", "-n", "-r", "22050", "-c", "1", "-b", "16", str(gap), "trim", "0",
                     str(SILENCE)], check=True)
     for i, (voice, text) in enumerate(PARTS):
         part = folder / f"part{i}.wav"
@@ -88,7 +88,7 @@ def speech(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, list[tuple[f
         spans.append((t, t + length))
         t += length
     joined = folder / "meeting.wav"
-    subprocess.run(["sox", *map(str, files), str(joined)], check=True)
+    subprocess.run(["sox", "-R", *map(str, files), str(joined)], check=True)
     return joined, spans
 
 
