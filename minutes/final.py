@@ -15,7 +15,7 @@ from .procedure import quorum
 from .relay.context import ReadContext
 from .relay.ledger import RelayResult
 from .relay.motions import settle
-from .relay.reconcile import reconcile
+from .relay.reconcile import reconcile, renumber
 from .segment import not_discussed
 from .speakers import Directory, attendance
 
@@ -121,9 +121,11 @@ def _without_procedure(ledger: Ledger) -> Ledger:
             return any(len(words & mw) >= 0.6 * max(len(words), 1) for mw in motion_words)
         return False
 
+    # numbered again, so the minutes run A1, A2... with no gap where a "second" was; items
+    # carried from an earlier meeting keep their series ids
     return replace(
         ledger,
-        actions=tuple(a for a in ledger.actions if not procedural(a)),
-        decisions=tuple(d for d in ledger.decisions if not procedural(d)),
-        questions=tuple(q for q in ledger.questions if not procedural(q)),
+        actions=renumber([a for a in ledger.actions if not procedural(a)], "A"),
+        decisions=renumber([d for d in ledger.decisions if not procedural(d)], "D"),
+        questions=renumber([q for q in ledger.questions if not procedural(q)], "Q"),
     )

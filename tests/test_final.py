@@ -24,10 +24,31 @@ def test_items_said_in_motion_procedure_are_dropped_and_others_kept() -> None:
         motions=(motion,),
     )
     kept = _without_procedure(ledger)
-    assert [a.id for a in kept.actions] == ["A2"]
-    assert [d.id for d in kept.decisions] == ["D2"]
+    # what is left is numbered again: no gap where the "second" was
+    assert [(a.id, a.task) for a in kept.actions] == [("A1", "send the contract to counsel")]
+    assert [(d.id, d.text) for d in kept.decisions] == [("D1", "keep the winter hours")]
     assert kept.questions == ()
     assert kept.motions == (motion,)
+
+
+def test_renumbering_after_procedure_keeps_series_ids() -> None:
+    from minutes.model import Change
+
+    motion = Motion("M1", "approve the minutes", "Ada Voss", "Ben Ortiz", Vote(), "carried",
+                    10.0, (ev(10), ev(11, "I'll second that")))
+    carried = ActionItem("A7", "renew the insurance", "Cy Hale", None, "open", 2.0, (ev(2),),
+                         history=(Change("carried", "A7", ev(2), source="series"),),
+                         source="series")
+    ledger = Ledger(
+        actions=(carried,
+                 ActionItem("A8", "second that", "Ben Ortiz", None, "open", 11.0, (ev(11),)),
+                 ActionItem("A9", "send the contract to counsel", "Cy Hale", None, "open", 20.0,
+                            (ev(20),))),
+        motions=(motion,),
+    )
+    kept = _without_procedure(ledger)
+    assert [(a.id, a.task) for a in kept.actions] == [("A7", "renew the insurance"),
+                                                      ("A8", "send the contract to counsel")]
 
 
 def test_a_meeting_without_motions_is_left_alone() -> None:

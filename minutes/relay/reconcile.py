@@ -152,7 +152,7 @@ def _firm(item: ActionItem, transcript: Transcript, chair: str | None) -> bool:
     return first.speaker == chair and item.owner is not None and item.owner != chair
 
 
-def _renumber(items: list, prefix: str) -> tuple:
+def renumber(items: list, prefix: str) -> tuple:
     """Return the items with ids: carried items keep theirs, new ones follow the highest in use."""
     used = [int(i.id[len(prefix):]) for i in items if _carried(i) and i.id.startswith(prefix)
             and i.id[len(prefix):].isdigit()]
@@ -200,8 +200,8 @@ def reconcile(ledger: Ledger, ctx: ReadContext) -> Ledger:
     questions: list[Question] = sorted(ledger.questions, key=lambda q: q.time)
     return replace(
         ledger,
-        actions=_renumber(actions, "A"),
-        decisions=_renumber(decisions, "D"),
-        questions=_renumber(questions, "Q"),
+        actions=renumber(actions, "A"),
+        decisions=renumber(decisions, "D"),
+        questions=renumber(questions, "Q"),
         proposals=tuple(sorted(proposals, key=lambda p: p.time)),
     )
