@@ -326,3 +326,24 @@ def test_that_is_done_after_a_named_deed_refers_to_that_deed() -> None:
                   ("Tom Brandt", "Sure."),
                   ("Kim Lee", "And Priya, you sent the photos last week, so that's done already.")])
     assert [(a.task, a.status) for a in ledger.actions] == [("print the barcode labels", "open")]
+
+
+def test_a_carried_items_earlier_changes_do_not_make_it_just_mentioned() -> None:
+    # Week 1 gave the item an owner at 1,497 s of week 1's clock. Three minutes into week 2
+    # that is not "a minute ago": "he's moved it to Thursday" must not re-date it.
+    from minutes.relay.ledger import relay
+    from minutes.relay.rules import RulesReader
+    from minutes.relay.state import NEVER, last_time
+
+    first = Evidence(3, "359", 1490.0, 1494.0, "Kim Lee", "we need someone to print the labels")
+    taken = Evidence(4, "361", 1497.0, 1499.0, "Tom Brandt", "I can do it")
+    item = ActionItem("A4", "print the barcode labels", "Tom Brandt", None, "open", 1490.0,
+                      (first, taken),
+                      history=(Change("created", None, first), Change("owner", "Tom Brandt", taken),
+                               Change("carried", "A4 from week 1", first, source="series")),
+                      source="series")
+    assert last_time(item) == NEVER
+    ctx, segments = meeting([("Kim Lee", "Priya, the survey's tomorrow, right?"),
+                             ("Priya Shah", "No, he's moved it to next Thursday.")])
+    ledger = relay(segments, RulesReader(ctx), Ledger(actions=(item,))).ledger
+    assert ledger.actions[0].due is None

@@ -112,8 +112,11 @@ def last_time(item: ActionItem) -> float:
     Evidence that came with an item from an earlier meeting of a series carries that
     meeting's clock, so it says nothing about how recent the item is here.
     """
-    earlier = {c.evidence for c in item.history if c.source == "series"}
-    here = [e.start for e in item.evidence if e not in earlier]
-    if here:
-        return max(here)
-    return NEVER if earlier else item.time
+    carried = [n for n, c in enumerate(item.history) if c.source == "series"]
+    if not carried:
+        return max((e.start for e in item.evidence), default=item.time)
+    # all evidence from before the carry is the earlier meeting's (its owner change too,
+    # not only the first quote); what this meeting adds comes with a change after it
+    later = {c.evidence for c in item.history[carried[-1] + 1:]}
+    here = [e.start for e in item.evidence if e in later]
+    return max(here) if here else NEVER
