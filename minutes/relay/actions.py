@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING
 from ..dates import resolve_due
 from ..model import ActionItem, Change, Evidence
 from .clauses import (
+    NEGATION,
     TALK_VERBS,
     WORK_COMPLEMENTS,
     Sentence,
@@ -314,10 +315,8 @@ def _speaker_for_me(task: str, speaker: str) -> str:
 
 def _negated(sentence: Sentence, start: int, verb: Token) -> bool:
     """Return True when a negation stands between the cue and the task's verb, or on the verb."""
-    between = [t.lower_ for t in sentence.doc[start:verb.i]]
-    if any(w in ("not", "n't", "never") for w in between) or "no longer" in " ".join(between):
-        return True
-    return any(c.dep_ == "neg" for c in verb.children)
+    between = " ".join(t.lower_ for t in sentence.doc[start:verb.i])
+    return bool(NEGATION.search(between)) or any(c.dep_ == "neg" for c in verb.children)
 
 
 def _immediate(task: str, due: str | None, due_text: str) -> bool:

@@ -29,6 +29,9 @@ FILLER_WORDS = frozenset(
 )
 FILLER_PHRASES = ("you know", "i mean", "kind of", "sort of", "i guess", "i think", "or something",
                   "and stuff", "and everything", "or whatever", "at all")
+# a negation in lower-cased tokens ("i 'll probably not send", "we do n't want"): cut after
+# a cue, a verb phrase would say the opposite, so readers look for it first
+NEGATION = re.compile(r"(?:^|\s)(?:not|n't|never|no longer)(?:\s|$)")
 # Verbs of talk in the room ("I'll show you", "let me explain"): they are not action items.
 TALK_VERBS = frozenset(
     "show tell say explain talk speak start begin continue present repeat mean think guess see "

@@ -13,6 +13,7 @@ import re
 
 from ..model import Change, Decision, Proposal
 from .clauses import (
+    NEGATION,
     TALK_VERBS,
     Sentence,
     capitalise,
@@ -160,15 +161,12 @@ _VERB_IN_CUE = re.compile(r"(?:go|going|gone|stick|sticking|settle|settling|opte
                           r"keep|take) (?:with |for |on )?$")
 
 
-_NEGATION = re.compile(r"(?:^|\s)(?:not|n't|never|no longer)(?:\s|$)")
-
-
 def _decision_text(sentence: Sentence, offset: int, cue: str = "", *, talk: bool = True) -> str:
     # "we don't want to use the teletext", "we've decided not to": a verb phrase would drop
     # the negation and say the opposite, so a negated decision keeps the speaker's clause
     ahead = " ".join(sentence.toks[offset:].split()[:2])
     asked = re.sub(r"why (?:do n't|not) we", "", cue)  # "why don't we...": a proposal
-    if _NEGATION.search(asked) or _NEGATION.search(ahead):
+    if NEGATION.search(asked) or NEGATION.search(ahead):
         text = _clause_from(sentence, offset - len(cue))
         return capitalise(text) if len(content_stems(text)) >= 2 else ""
     m = _VERB_IN_CUE.search(cue)
